@@ -1,0 +1,49 @@
+import type { z } from 'zod'
+import { FetchError } from 'ofetch'
+import type { FieldErrors } from '#shared/types'
+import { fieldErrorsFrom } from '#shared/utils/field-errors'
+
+/**
+ * One way for every form: check with the same zod schema the server uses, send, and show
+ * the server's field messages if it still refuses. What was typed stays when the network fails.
+ */
+export function useForm<S extends z.ZodType>(schema: S) {
+  const errors = ref<FieldErrors>({})
+  const message = ref('')
+  const pending = ref(false)
+
+  async function submit<R>(values: unknown, send: (data: z.output<S>) => Promise<R>): Promise<R | undefined> {
+    errors.value = {}
+    message.value = ''
+    const parsed = schema.safeParse(values)
+    if (!parsed.success) {
+      errors.value = fieldErrorsFrom(parsed.error)
+      message.value = 'Some fields need attention.'
+      return undefined
+    }
+    pending.value = true
+    try {
+      return await send(parsed.data)
+    }
+    catch (error) {
+      const { fieldErrors, text } = describeFetchError(error)
+      errors.value = fieldErrors
+      message.value = text
+      return undefined
+    }
+    finally {
+      pending.value = false
+    }
+  }
+
+  return { errors, message, pending, submit }
+}
+
+export function describeFetchError(error: unknown): { fieldErrors: FieldErrors, text: string } {
+  if (error instanceof FetchError) {
+    if (!error.response) return { fieldErrors: {}, text: 'No connection: nothing was saved. What you typed is still here; try again when the signal is back.' }
+    const data = error.data as { message?: string, statusMessage?: string, data?: { fieldErrors?: FieldErrors } } | undefined
+    return { fieldErrors: data?.data?.fieldErrors ?? {}, text: data?.message || data?.statusMessage || error.statusMessage || 'Something went wrong.' }
+  }
+  return { fieldErrors: {}, text: 'Something went wrong.' }
+}

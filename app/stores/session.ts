@@ -1,0 +1,35 @@
+import { defineStore } from 'pinia'
+import type { CurrentUser, UnitSystem } from '#shared/types'
+
+export const useSessionStore = defineStore('session', {
+  state: () => ({ user: null as CurrentUser | null, loaded: false }),
+  getters: {
+    signedIn: state => state.user !== null,
+    units: (state): UnitSystem => state.user?.units ?? 'metric',
+  },
+  actions: {
+    async load() {
+      try {
+        this.user = await useRequestFetch()<CurrentUser>('/api/me')
+      }
+      catch {
+        this.user = null
+      }
+      this.loaded = true
+    },
+    async signIn(body: { email: string, password: string }) {
+      this.user = await $fetch<CurrentUser>('/api/auth/sign-in', { method: 'POST', body })
+    },
+    async signUp(body: { name: string, email: string, password: string }) {
+      this.user = await $fetch<CurrentUser>('/api/auth/sign-up', { method: 'POST', body })
+    },
+    async signOut() {
+      await $fetch('/api/auth/sign-out', { method: 'POST' })
+      this.user = null
+      await clearNuxtData()
+    },
+    async update(body: { name?: string, units?: UnitSystem }) {
+      this.user = await $fetch<CurrentUser>('/api/me', { method: 'PATCH', body })
+    },
+  },
+})

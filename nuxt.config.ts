@@ -1,0 +1,50 @@
+// Fintrail: Nuxt 4 app with a Nitro server, PostgreSQL through Drizzle, sessions from nuxt-auth-utils.
+export default defineNuxtConfig({
+  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint'],
+  devtools: { enabled: false },
+  app: {
+    head: {
+      htmlAttrs: { lang: 'en' },
+      title: 'Fintrail',
+      meta: [
+        { name: 'viewport', content: 'width=device-width, initial-scale=1' },
+        { name: 'theme-color', content: '#0d3b3e' },
+      ],
+    },
+  },
+  css: [
+    '@fontsource/nunito-sans/400.css',
+    '@fontsource/nunito-sans/600.css',
+    '@fontsource/nunito-sans/700.css',
+    '@fontsource/nunito-sans/800.css',
+    '@fontsource/nunito-sans/400-italic.css',
+    '~/assets/css/main.css',
+  ],
+  runtimeConfig: {
+    databaseUrl: '',
+    appOrigin: '',
+    trustProxy: false,
+    storageDir: '',
+    smtpHost: '127.0.0.1',
+    smtpPort: 1025,
+    mailFrom: 'Fintrail <no-reply@fintrail.local>',
+    signInLimit: 10,
+    signInIpLimit: 100,
+    signInWindowSeconds: 900,
+    sessionIdleSeconds: 60 * 60 * 24 * 7,
+    sessionAbsoluteSeconds: 60 * 60 * 24 * 30,
+    session: {
+      name: 'fintrail-session',
+      maxAge: 60 * 60 * 24 * 30,
+      cookie: { secure: true, sameSite: 'lax', httpOnly: true },
+    },
+  },
+  compatibilityDate: '2026-01-01',
+  nitro: {
+    experimental: { tasks: true },
+  },
+  typescript: { strict: true },
+  telemetry: false,
+  eslint: { config: { stylistic: true } },
+  tailwindcss: { cssPath: '~/assets/css/main.css', viewer: false },
+})

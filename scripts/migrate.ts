@@ -1,0 +1,42 @@
+// Applies the committed drizzle/ migrations before any server starts: Nitro does not wait for
+// async plugins, so migrating at boot could lose the race with the first request.
+import { fileURLToPath } from 'node:url'
+import { drizzle } from 'drizzle-orm/node-postgres'
+import { migrate } from 'drizzle-orm/node-postgres/migrator'
+import pg from 'pg'
+
+const databaseUrl = process.env.DATABASE_URL
+if (!databaseUrl) {
+  console.error('migrate: DATABASE_URL is not set (e.g. postgres://fintrail@127.0.0.1:54329/fintrail)')
+  process.exit(1)
+}
+
+// Resolved from this file, so it works from any working directory.
+const migrationsFolder = fileURLToPath(new URL('../drizzle', import.meta.url))
+const pool = new pg.Pool({ connectionString: databaseUrl, max: 1, connectionTimeoutMillis: 10_000 })
+
+function withoutPassword(url: string) {
+  try {
+    const parsed = new URL(url)
+    parsed.password = ''
+    return parsed.href
+  }
+  catch {
+    return '(an unparsable DATABASE_URL)'
+  }
+}
+
+try {
+  await migrate(drizzle(pool), { migrationsFolder })
+  console.log('migrations applied')
+}
+catch (error) {
+  console.error(`migrate: could not apply the migrations in ${migrationsFolder} to ${withoutPassword(databaseUrl)}`)
+  console.error(`migrate: ${error instanceof Error ? error.message : String(error)}`)
+  const cause = (error as { cause?: unknown }).cause
+  if (cause instanceof Error) console.error(`migrate: cause: ${cause.message}`)
+  process.exitCode = 1
+}
+finally {
+  await pool.end()
+}

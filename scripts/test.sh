@@ -1,0 +1,116 @@
+#!/usr/bin/env bash
+# npm test: lint, typecheck, build, then every vitest project against a fresh PostgreSQL
+# database and a fake mail server. One run reports everything; it fails if anything failed.
+set -euo pipefail
+source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
+cd "$ROOT"
+
+PG_PORT=54339
+PG_DB=fintrail_test
+SMTP_PORT=2025
+INBOX_PORT=2080
+INBOX_URL="http://127.0.0.1:$INBOX_PORT"
+TEST_STORAGE_DIR="$STORAGE_DIR/test"
+TEST_MAIL_DIR="$STORAGE_DIR/test-mail"
+TEST_ENV_FILE="$STORAGE_DIR/test-env.json"
+
+require_free_port "$SMTP_PORT" "test SMTP"
+require_free_port "$INBOX_PORT" "test mail inbox"
+
+MAIL_PID=""
+CLUSTER_STARTED=""
+STOPPED=""
+# Silent, so vitest's summary stays the last thing printed.
+cleanup() {
+  [ -n "$STOPPED" ] && return
+  STOPPED=1
+  trap - INT TERM EXIT
+  [ -n "$MAIL_PID" ] && stop_process "$MAIL_PID" >/dev/null 2>&1
+  [ -n "$CLUSTER_STARTED" ] && pg_cluster_stop test >/dev/null 2>&1
+  return 0
+}
+trap 'cleanup; exit 130' INT
+trap 'cleanup; exit 143' TERM
+trap cleanup EXIT
+
+ensure_node_modules
+ensure_apt_packages postgresql chromium poppler-utils
+
+CLUSTER_STARTED=1
+pg_cluster_start test "$PG_PORT" fast
+pg_fresh_database "$PG_PORT" "$PG_DB"
+export DATABASE_URL="postgres://fintrail@127.0.0.1:$PG_PORT/$PG_DB"
+
+say "Applying database migrations to $PG_DB ..."
+run_migrations "$DATABASE_URL"
+
+# A new secret every run: test sessions never match demo ones and never outlive the run.
+NUXT_SESSION_PASSWORD="$(random_secret)"
+ensure_session_secret
+
+# Uploaded files and mail belong to the database they were made with: start empty with it.
+rm -rf "$TEST_STORAGE_DIR" "$TEST_MAIL_DIR"
+mkdir -p "$TEST_STORAGE_DIR" "$TEST_MAIL_DIR"
+
+say "Starting the test mail server (SMTP $SMTP_PORT, inbox $INBOX_URL) ..."
+start_mail_server "$SMTP_PORT" "$INBOX_PORT" "$TEST_MAIL_DIR" "$STORAGE_DIR/test-mail-server.log"
+
+export NUXT_DATABASE_URL="$DATABASE_URL"
+export NUXT_STORAGE_DIR="$TEST_STORAGE_DIR"
+export NUXT_SMTP_HOST=127.0.0.1 NUXT_SMTP_PORT="$SMTP_PORT"
+export FINTRAIL_TEST_ENV="$TEST_ENV_FILE"
+
+DATABASE_URL_JSON="$DATABASE_URL" PG_DATA_DIR_JSON="$PGDATA_DIR" PG_PORT_JSON="$PG_PORT" \
+  PG_START_JSON="$(pg_start_command_json "$PGDATA_DIR")" PG_STOP_JSON="$(pg_stop_command_json "$PGDATA_DIR")" \
+  SMTP_PORT_JSON="$SMTP_PORT" INBOX_URL_JSON="$INBOX_URL" STORAGE_DIR_JSON="$TEST_STORAGE_DIR" \
+  node -e '
+    const e = process.env
+    const env = {
+      databaseUrl: e.DATABASE_URL_JSON,
+      pgDataDir: e.PG_DATA_DIR_JSON,
+      pgPort: Number(e.PG_PORT_JSON),
+      pgStartCommand: JSON.parse(e.PG_START_JSON),
+      pgStopCommand: JSON.parse(e.PG_STOP_JSON),
+      smtpPort: Number(e.SMTP_PORT_JSON),
+      inboxUrl: e.INBOX_URL_JSON,
+      sessionPassword: e.NUXT_SESSION_PASSWORD,
+      storageDir: e.STORAGE_DIR_JSON,
+    }
+    require("node:fs").writeFileSync(process.argv[1], JSON.stringify(env, null, 2) + "\n", { mode: 0o600 })
+  ' "$TEST_ENV_FILE"
+chmod 600 "$TEST_ENV_FILE"
+
+BIN="$ROOT/node_modules/.bin"
+prepare_status=0 lint_status=0 typecheck_status=0 build_status=0 vitest_status=0
+
+say "nuxt prepare ..."
+"$BIN/nuxt" prepare || prepare_status=$?
+
+say "Lint (eslint .) ..."
+"$BIN/eslint" . || lint_status=$?
+
+say "Typecheck (nuxi typecheck) ..."
+"$BIN/nuxi" typecheck || typecheck_status=$?
+
+say "Build (nuxt build) ..."
+"$BIN/nuxt" build || build_status=$?
+
+verdict() { if [ "$1" -eq 0 ]; then echo ok; else echo "FAILED (exit $1)"; fi; }
+cat <<EOF
+
+  ── before the tests ────────────────────────
+  nuxt prepare : $(verdict "$prepare_status")
+  lint         : $(verdict "$lint_status")
+  typecheck    : $(verdict "$typecheck_status")
+  build        : $(verdict "$build_status")
+  ────────────────────────────────────────────
+
+EOF
+
+"$BIN/vitest" run || vitest_status=$?
+
+cleanup
+if [ $((prepare_status + lint_status + typecheck_status + build_status + vitest_status)) -ne 0 ]; then
+  exit 1
+fi
+exit 0

@@ -1,0 +1,10 @@
+import { eq } from 'drizzle-orm'
+import { pondIdParams, pondUpdateSchema } from '#shared/utils/pond-schemas'
+
+export default defineEventHandler(async (event) => {
+  const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
+  const { role } = await requirePondRole(event, pondId, ['owner'])
+  const input = await readValidated(event, pondUpdateSchema)
+  await useDb().update(schema.ponds).set({ ...input, updatedAt: new Date() }).where(eq(schema.ponds.id, pondId))
+  return pondDetail(pondId, role)
+})

@@ -1,0 +1,4 @@
+export default defineEventHandler(async (event) => {
+  const user = requireUser(event)
+  return listPondsOf(user.id)
+})

@@ -1,0 +1,47 @@
+import { sql } from 'drizzle-orm'
+import { boolean, date, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { timestamps } from './columns'
+import { ponds } from './ponds'
+import { users } from './users'
+
+export const fishSpecies = pgEnum('fish_species', ['koi', 'goldfish', 'other'])
+export const fishSex = pgEnum('fish_sex', ['unknown', 'male', 'female'])
+export const fishStatus = pgEnum('fish_status', ['alive', 'deceased', 'rehomed'])
+
+export const fish = pgTable('fish', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  pondId: uuid('pond_id').notNull().references(() => ponds.id),
+  name: varchar('name', { length: 80 }).notNull(),
+  species: fishSpecies('species').notNull(),
+  scientificName: varchar('scientific_name', { length: 120 }).notNull(),
+  variety: varchar('variety', { length: 80 }).notNull().default(''),
+  sex: fishSex('sex').notNull().default('unknown'),
+  hatchYear: integer('hatch_year'),
+  hatchYearEstimated: boolean('hatch_year_estimated').notNull().default(false),
+  acquiredOn: date('acquired_on'),
+  acquiredFrom: varchar('acquired_from', { length: 160 }).notNull().default(''),
+  microchip: varchar('microchip', { length: 15 }),
+  features: text('features').notNull().default(''),
+  status: fishStatus('status').notNull().default('alive'),
+  profilePhotoId: uuid('profile_photo_id'),
+  // Optimistic locking: a PATCH names the version it edited; a stale one is refused with 409.
+  version: integer('version').notNull().default(1),
+  ...timestamps,
+}, t => [
+  index('fish_pond_idx').on(t.pondId),
+  index('fish_pond_name_idx').on(t.pondId, t.name),
+  uniqueIndex('fish_microchip_alive_unique').on(t.microchip).where(sql`${t.status} = 'alive' and ${t.microchip} is not null`),
+])
+
+export type FishFieldChange = { field: string, from: unknown, to: unknown }
+
+export const fishEdits = pgTable('fish_edits', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  fishId: uuid('fish_id').notNull().references(() => fish.id),
+  userId: uuid('user_id').notNull().references(() => users.id),
+  changes: jsonb('changes').$type<FishFieldChange[]>().notNull(),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+}, t => [
+  index('fish_edits_fish_idx').on(t.fishId, t.createdAt),
+  index('fish_edits_user_idx').on(t.userId),
+])

@@ -1,0 +1,6 @@
+export * from './users'
+export * from './ponds'
+export * from './fish'
+export * from './photos'
+export * from './timeline'
+export * from './relations'

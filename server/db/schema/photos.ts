@@ -1,0 +1,36 @@
+import { index, integer, jsonb, pgEnum, pgTable, text, timestamp, uuid, varchar } from 'drizzle-orm/pg-core'
+import { fish } from './fish'
+import { users } from './users'
+
+export const photoView = pgEnum('photo_view', ['top', 'left', 'right', 'closeup', 'other'])
+export const photoState = pgEnum('photo_state', ['pending', 'ready', 'failed'])
+
+export type PhotoVariant = { longSide: number, width: number, height: number, format: 'webp' | 'jpeg', bytes: number }
+
+export const photos = pgTable('photos', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  fishId: uuid('fish_id').notNull().references(() => fish.id),
+  uploaderId: uuid('uploader_id').notNull().references(() => users.id),
+  // The tus upload id: a retried finish hook finds the same row instead of adding a second one.
+  uploadId: varchar('upload_id', { length: 80 }).notNull().unique(),
+  originalName: varchar('original_name', { length: 255 }).notNull().default(''),
+  view: photoView('view').notNull().default('other'),
+  caption: varchar('caption', { length: 300 }).notNull().default(''),
+  takenAt: timestamp('taken_at', { withTimezone: true }),
+  state: photoState('state').notNull().default('pending'),
+  failureReason: text('failure_reason'),
+  mime: varchar('mime', { length: 40 }),
+  width: integer('width'),
+  height: integer('height'),
+  bytes: integer('bytes'),
+  sha256: varchar('sha256', { length: 64 }),
+  variants: jsonb('variants').$type<PhotoVariant[]>().notNull().default([]),
+  removedAt: timestamp('removed_at', { withTimezone: true }),
+  removedById: uuid('removed_by_id').references(() => users.id),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+}, t => [
+  index('photos_fish_idx').on(t.fishId, t.createdAt),
+  index('photos_uploader_idx').on(t.uploaderId),
+  index('photos_removed_by_idx').on(t.removedById),
+])

@@ -1,0 +1,42 @@
+import { index, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { timestamps } from './columns'
+import { users } from './users'
+
+export const pondRole = pgEnum('pond_role', ['owner', 'keeper', 'vet'])
+
+export const ponds = pgTable('ponds', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  name: varchar('name', { length: 120 }).notNull(),
+  volumeLitres: numeric('volume_litres', { precision: 12, scale: 1, mode: 'number' }),
+  notes: text('notes').notNull().default(''),
+  ...timestamps,
+})
+
+export const memberships = pgTable('memberships', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  pondId: uuid('pond_id').notNull().references(() => ponds.id, { onDelete: 'cascade' }),
+  userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  role: pondRole('role').notNull(),
+  ...timestamps,
+}, t => [
+  uniqueIndex('memberships_pond_user_unique').on(t.pondId, t.userId),
+  index('memberships_user_idx').on(t.userId),
+])
+
+export const invitations = pgTable('invitations', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  pondId: uuid('pond_id').notNull().references(() => ponds.id, { onDelete: 'cascade' }),
+  email: varchar('email', { length: 254 }).notNull(),
+  role: pondRole('role').notNull(),
+  tokenHash: varchar('token_hash', { length: 64 }).notNull().unique(),
+  invitedById: uuid('invited_by_id').notNull().references(() => users.id),
+  expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+  acceptedAt: timestamp('accepted_at', { withTimezone: true }),
+  acceptedById: uuid('accepted_by_id').references(() => users.id),
+  withdrawnAt: timestamp('withdrawn_at', { withTimezone: true }),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+}, t => [
+  index('invitations_pond_idx').on(t.pondId),
+  index('invitations_invited_by_idx').on(t.invitedById),
+  index('invitations_accepted_by_idx').on(t.acceptedById),
+])

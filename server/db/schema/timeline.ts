@@ -1,0 +1,57 @@
+import { boolean, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import { fish } from './fish'
+import { ponds } from './ponds'
+import { users } from './users'
+import { photos } from './photos'
+
+// move and owner_change are written by the custody work; they are listed now so the enum need not change then.
+export const timelineKind = pgEnum('timeline_kind', [
+  'measurement', 'observation', 'exam', 'problem', 'procedure', 'anaesthesia', 'treatment',
+  'lab_result', 'companion', 'death', 'photo', 'move', 'owner_change',
+])
+
+export const timelineEntries = pgTable('timeline_entries', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  fishId: uuid('fish_id').notNull().references(() => fish.id),
+  // The pond the fish lived in when this happened; history keeps it after a move.
+  pondId: uuid('pond_id').notNull().references(() => ponds.id),
+  kind: timelineKind('kind').notNull(),
+  occurredAt: timestamp('occurred_at', { withTimezone: true }).notNull(),
+  authorId: uuid('author_id').notNull().references(() => users.id),
+  relatedFishId: uuid('related_fish_id').references(() => fish.id),
+  linkedEntryId: uuid('linked_entry_id'),
+  photoId: uuid('photo_id').references(() => photos.id),
+  // The current revision's fields, copied here so lists and computations need no join.
+  data: jsonb('data').$type<Record<string, unknown>>().notNull(),
+  revision: integer('revision').notNull().default(1),
+  enteredInError: boolean('entered_in_error').notNull().default(false),
+  errorReason: text('error_reason'),
+  errorById: uuid('error_by_id').references(() => users.id),
+  errorAt: timestamp('error_at', { withTimezone: true }),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+}, t => [
+  index('timeline_fish_occurred_idx').on(t.fishId, t.occurredAt.desc(), t.id.desc()),
+  index('timeline_fish_kind_occurred_idx').on(t.fishId, t.kind, t.occurredAt.desc()),
+  index('timeline_pond_idx').on(t.pondId),
+  index('timeline_author_idx').on(t.authorId),
+  index('timeline_related_fish_idx').on(t.relatedFishId),
+  index('timeline_linked_entry_idx').on(t.linkedEntryId),
+  index('timeline_photo_idx').on(t.photoId),
+  index('timeline_error_by_idx').on(t.errorById),
+])
+
+// Every revision ever written, the first included; rows here are never updated or deleted.
+export const timelineRevisions = pgTable('timeline_revisions', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  entryId: uuid('entry_id').notNull().references(() => timelineEntries.id),
+  revision: integer('revision').notNull(),
+  occurredAt: timestamp('occurred_at', { withTimezone: true }).notNull(),
+  data: jsonb('data').$type<Record<string, unknown>>().notNull(),
+  authorId: uuid('author_id').notNull().references(() => users.id),
+  reason: text('reason'),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+}, t => [
+  uniqueIndex('timeline_revisions_entry_revision_unique').on(t.entryId, t.revision),
+  index('timeline_revisions_author_idx').on(t.authorId),
+])

@@ -1,0 +1,28 @@
+import { eq } from 'drizzle-orm'
+
+// Reads the session row behind the cookie on every request: revoked, idle or too old sessions end here.
+const TOUCH_AFTER_MS = 60_000
+
+export default defineEventHandler(async (event) => {
+  if (event.path.startsWith('/_nuxt/') || event.path.startsWith('/__nuxt') || event.path === '/api/health') return
+  const session = await getUserSession(event)
+  if (!session.sessionId) return
+  const config = useRuntimeConfig(event)
+  const [row] = await useDb().select({
+    id: schema.sessions.id, createdAt: schema.sessions.createdAt, lastSeenAt: schema.sessions.lastSeenAt, revokedAt: schema.sessions.revokedAt,
+    user: { id: schema.users.id, name: schema.users.name, email: schema.users.email, units: schema.users.units },
+  }).from(schema.sessions).innerJoin(schema.users, eq(schema.users.id, schema.sessions.userId))
+    .where(eq(schema.sessions.id, session.sessionId)).limit(1)
+  const now = Date.now()
+  const valid = row && !row.revokedAt
+    && now - row.lastSeenAt.getTime() < Number(config.sessionIdleSeconds) * 1000
+    && now - row.createdAt.getTime() < Number(config.sessionAbsoluteSeconds) * 1000
+  if (!valid) {
+    await clearUserSession(event)
+    return
+  }
+  event.context.auth = { sessionId: row.id, user: row.user }
+  if (now - row.lastSeenAt.getTime() > TOUCH_AFTER_MS) {
+    await useDb().update(schema.sessions).set({ lastSeenAt: new Date(now) }).where(eq(schema.sessions.id, row.id))
+  }
+})

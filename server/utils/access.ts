@@ -1,0 +1,47 @@
+import type { H3Event } from 'h3'
+import { and, eq } from 'drizzle-orm'
+import type { PondRole, CurrentUser } from '#shared/types'
+
+export const ANY_ROLE: readonly PondRole[] = ['owner', 'keeper', 'vet']
+
+function notFound(what: string) {
+  return createError({ statusCode: 404, statusMessage: `${what} not found` })
+}
+
+function forbidden(roles: readonly PondRole[]) {
+  return createError({ statusCode: 403, statusMessage: `Only a pond ${roles.join(' or ')} may do this` })
+}
+
+/**
+ * The one place pond access is decided. The role is read from the database on every call,
+ * so a removed member is refused on their very next request. Non-members get 404, like a pond that does not exist.
+ */
+export async function requirePondRole(event: H3Event, pondId: string, roles: readonly PondRole[] = ANY_ROLE) {
+  const user = requireUser(event)
+  const [membership] = await useDb().select({ role: schema.memberships.role })
+    .from(schema.memberships)
+    .where(and(eq(schema.memberships.pondId, pondId), eq(schema.memberships.userId, user.id)))
+    .limit(1)
+  if (!membership) throw notFound('Pond')
+  if (!roles.includes(membership.role)) throw forbidden(roles)
+  return { user, role: membership.role as PondRole }
+}
+
+export interface FishAccess {
+  user: CurrentUser
+  role: PondRole
+  fish: typeof schema.fish.$inferSelect
+}
+
+/** Same rule for a fish: it is visible only through a membership of the pond it lives in. */
+export async function requireFishRole(event: H3Event, fishId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<FishAccess> {
+  const user = requireUser(event)
+  const [row] = await useDb().select({ fish: schema.fish, role: schema.memberships.role })
+    .from(schema.fish)
+    .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
+    .where(eq(schema.fish.id, fishId))
+    .limit(1)
+  if (!row) throw notFound('Fish')
+  if (!roles.includes(row.role)) throw forbidden(roles)
+  return { user, role: row.role as PondRole, fish: row.fish }
+}

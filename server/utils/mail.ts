@@ -1,0 +1,18 @@
+import nodemailer from 'nodemailer'
+
+let transport: nodemailer.Transporter | undefined
+
+function useTransport() {
+  const config = useRuntimeConfig()
+  transport ??= nodemailer.createTransport({
+    host: String(config.smtpHost),
+    port: Number(config.smtpPort),
+    secure: false,
+    ignoreTLS: Number(config.smtpPort) !== 587,
+  })
+  return transport
+}
+
+export async function sendMail(message: { to: string, subject: string, text: string }) {
+  await useTransport().sendMail({ from: String(useRuntimeConfig().mailFrom), ...message })
+}

@@ -1,0 +1,29 @@
+import { and, count, eq, sql } from 'drizzle-orm'
+import type { PondDetail, PondRole } from '#shared/types'
+
+const aliveFishCount = sql<number>`(select count(*)::int from ${schema.fish} where ${schema.fish.pondId} = ${schema.ponds.id} and ${schema.fish.status} = 'alive')`
+
+export async function listPondsOf(userId: string) {
+  return useDb().select({
+    id: schema.ponds.id, name: schema.ponds.name, volumeLitres: schema.ponds.volumeLitres,
+    role: schema.memberships.role, fishCount: aliveFishCount,
+  }).from(schema.memberships)
+    .innerJoin(schema.ponds, eq(schema.ponds.id, schema.memberships.pondId))
+    .where(eq(schema.memberships.userId, userId))
+    .orderBy(schema.ponds.name)
+}
+
+export async function pondDetail(pondId: string, role: PondRole): Promise<PondDetail> {
+  const [pond] = await useDb().select({
+    id: schema.ponds.id, name: schema.ponds.name, volumeLitres: schema.ponds.volumeLitres, notes: schema.ponds.notes,
+    createdAt: schema.ponds.createdAt, updatedAt: schema.ponds.updatedAt, fishCount: aliveFishCount,
+  }).from(schema.ponds).where(eq(schema.ponds.id, pondId))
+  if (!pond) throw createError({ statusCode: 404, statusMessage: 'Pond not found' })
+  return { ...pond, role, createdAt: pond.createdAt.toISOString(), updatedAt: pond.updatedAt.toISOString() }
+}
+
+export async function ownerCount(pondId: string) {
+  const [row] = await useDb().select({ n: count() }).from(schema.memberships)
+    .where(and(eq(schema.memberships.pondId, pondId), eq(schema.memberships.role, 'owner')))
+  return row?.n ?? 0
+}

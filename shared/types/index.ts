@@ -1,0 +1,88 @@
+export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
+export type PondRole = typeof POND_ROLES[number]
+
+export const FISH_SPECIES = ['koi', 'goldfish', 'other'] as const
+export type FishSpecies = typeof FISH_SPECIES[number]
+export const FISH_SEXES = ['unknown', 'male', 'female'] as const
+export const FISH_STATUSES = ['alive', 'deceased', 'rehomed'] as const
+export type FishStatus = typeof FISH_STATUSES[number]
+
+export type UnitSystem = 'metric' | 'us'
+
+export type FieldErrors = Record<string, string[]>
+
+export interface CurrentUser {
+  id: string
+  name: string
+  email: string
+  units: UnitSystem
+}
+
+export interface PondSummary {
+  id: string
+  name: string
+  role: PondRole
+  volumeLitres: number | null
+  fishCount: number
+}
+
+export interface PondDetail {
+  id: string
+  name: string
+  volumeLitres: number | null
+  notes: string
+  role: PondRole
+  fishCount: number
+  createdAt: string
+  updatedAt: string
+}
+
+export interface FishListItem {
+  id: string
+  name: string
+  species: FishSpecies
+  scientificName: string
+  variety: string
+  sex: string
+  hatchYear: number | null
+  hatchYearEstimated: boolean
+  ageYears: number | null
+  microchip: string | null
+  status: FishStatus
+  profilePhotoId: string | null
+  latestWeightG: number | null
+  latestLengthCm: number | null
+  latestConditionK: number | null
+  weightAlert: boolean
+}
+
+export interface FishProfile {
+  id: string
+  pondId: string
+  pondName: string
+  role: PondRole
+  name: string
+  species: FishSpecies
+  scientificName: string
+  variety: string
+  sex: 'unknown' | 'male' | 'female'
+  hatchYear: number | null
+  hatchYearEstimated: boolean
+  ageYears: number | null
+  acquiredOn: string | null
+  acquiredFrom: string
+  microchip: string | null
+  features: string
+  status: FishStatus
+  profilePhotoId: string | null
+  version: number
+  createdAt: string
+  updatedAt: string
+}
+
+export interface FishEditRecord {
+  id: string
+  at: string
+  by: string
+  changes: { field: string, from: unknown, to: unknown }[]
+}

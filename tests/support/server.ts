@@ -1,0 +1,59 @@
+import { spawn, type ChildProcess } from 'node:child_process'
+import { mkdirSync } from 'node:fs'
+import { resolve } from 'node:path'
+import { ROOT, testEnv } from './env'
+
+export interface RunningServer {
+  url: string
+  process: ChildProcess
+  stop: () => Promise<void>
+  kill: () => Promise<void>
+  output: () => string
+}
+
+/** Starts the built production server (.output) on its own port against the test database. */
+export async function startServer(port: number, extraEnv: Record<string, string> = {}): Promise<RunningServer> {
+  const env = testEnv()
+  mkdirSync(env.storageDir, { recursive: true })
+  let output = ''
+  const child = spawn(process.execPath, [resolve(ROOT, '.output/server/index.mjs')], {
+    cwd: ROOT,
+    env: {
+      ...process.env,
+      NODE_ENV: 'production',
+      HOST: '127.0.0.1',
+      NITRO_HOST: '127.0.0.1',
+      PORT: String(port),
+      NITRO_PORT: String(port),
+      NUXT_DATABASE_URL: env.databaseUrl,
+      NUXT_SESSION_PASSWORD: env.sessionPassword,
+      NUXT_SESSION_COOKIE_SECURE: 'false',
+      NUXT_APP_ORIGIN: `http://127.0.0.1:${port}`,
+      NUXT_SMTP_PORT: String(env.smtpPort),
+      NUXT_STORAGE_DIR: env.storageDir,
+      NUXT_TRUST_PROXY: 'true',
+      ...extraEnv,
+    },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  })
+  child.stdout!.on('data', (d: Buffer) => (output += d.toString()))
+  child.stderr!.on('data', (d: Buffer) => (output += d.toString()))
+  const url = `http://127.0.0.1:${port}`
+  const exited = new Promise<void>(done => child.once('exit', () => done()))
+  const deadline = Date.now() + 30_000
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`server exited early:\n${output}`)
+    try {
+      const response = await fetch(`${url}/api/health`)
+      if (response.ok) break
+    }
+    catch { /* not listening yet */ }
+    if (Date.now() > deadline) throw new Error(`server did not start on ${url}:\n${output}`)
+    await new Promise(r => setTimeout(r, 150))
+  }
+  const end = async (signal: NodeJS.Signals) => {
+    if (child.exitCode === null && child.signalCode === null) child.kill(signal)
+    await exited
+  }
+  return { url, process: child, stop: () => end('SIGTERM'), kill: () => end('SIGKILL'), output: () => output }
+}
