@@ -325,7 +325,7 @@ port_in_use() {
 require_free_port() {
   local port="$1" what="$2"
   if port_in_use "$port"; then
-    die "port $port ($what) is already in use on 127.0.0.1 — is another copy still running? Stop it first."
+    die "port $port on 127.0.0.1 is already in use, but $what needs it. Is another copy still running? Stop it first."
   fi
 }
 
@@ -373,5 +373,5 @@ start_mail_server() {
 run_migrations() {
   local url="$1"
   (cd "$ROOT" && DATABASE_URL="$url" "$ROOT/node_modules/.bin/tsx" scripts/migrate.ts) ||
-    die "database migrations failed (see above); nothing was started."
+    die "database migrations failed (see above); stopping."
 }

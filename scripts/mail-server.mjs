@@ -168,8 +168,8 @@ function inboxPage(messages) {
     ? `<table><thead><tr><th>Received</th><th>To</th><th>Subject</th></tr></thead><tbody>${rows}</tbody></table>`
     : '<p>No messages yet. Mail the app sends shows up here.</p>'
   return page('Local inbox', `<h1>Local inbox</h1>
-    <p class="muted">${messages.length} message(s), newest first. Nothing here leaves this machine.
-    <form method="post" action="/clear" style="display:inline"><button>Delete all</button></form></p>${list}`)
+    <p class="muted">${messages.length} message(s), newest first. Nothing here leaves this machine.</p>
+    <form method="post" action="/clear"><button>Delete all</button></form>${list}`)
 }
 
 function messagePage(m) {
@@ -215,6 +215,11 @@ async function route(req, res) {
     return sendHtml(res, 200, inboxPage(await listMessages(url.searchParams.get('to'))))
   }
   if (path === '/clear' && method === 'POST') {
+    // Another site's form must not empty the inbox: browsers send Origin on cross-site posts.
+    const origin = req.headers.origin
+    if (origin && origin !== `http://${HOST}:${INBOX_PORT}` && origin !== `http://localhost:${INBOX_PORT}`) {
+      return sendJson(res, 403, { error: 'Cross-site request refused' })
+    }
     await clearMessages()
     res.writeHead(303, { location: '/' })
     return res.end()

@@ -13,7 +13,7 @@ INBOX_URL="http://127.0.0.1:$INBOX_PORT"
 APP_ORIGIN="http://127.0.0.1:$PORT"
 
 # Fail before touching anything when another copy still holds the ports.
-require_free_port "$PORT" "the app (set PORT=... to use another)"
+require_free_port "$PORT" "the app (set PORT=... to choose another)"
 require_free_port "$SMTP_PORT" "fake SMTP"
 require_free_port "$INBOX_PORT" "mail inbox"
 
@@ -98,8 +98,8 @@ cat <<EOF
   ────────────────────────────────────────────────────────────
 EOF
 if [ -f "$ROOT/scripts/demo-accounts.txt" ]; then
-  printf '\n  Demo accounts:\n'
-  sed 's/^/    /' "$ROOT/scripts/demo-accounts.txt"
+  echo
+  sed 's/^/  /' "$ROOT/scripts/demo-accounts.txt"
   echo
 fi
 

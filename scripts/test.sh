@@ -5,10 +5,10 @@ set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
 cd "$ROOT"
 
-PG_PORT=54339
+PG_PORT="${FINTRAIL_TEST_PG_PORT:-54339}"
 PG_DB=fintrail_test
-SMTP_PORT=2025
-INBOX_PORT=2080
+SMTP_PORT="${FINTRAIL_TEST_SMTP_PORT:-2025}"
+INBOX_PORT="${FINTRAIL_TEST_INBOX_PORT:-2080}"
 INBOX_URL="http://127.0.0.1:$INBOX_PORT"
 TEST_STORAGE_DIR="$STORAGE_DIR/test"
 TEST_MAIL_DIR="$STORAGE_DIR/test-mail"
@@ -43,6 +43,10 @@ export DATABASE_URL="postgres://fintrail@127.0.0.1:$PG_PORT/$PG_DB"
 
 say "Applying database migrations to $PG_DB ..."
 run_migrations "$DATABASE_URL"
+
+# The browser tests sign in as the demo people, so the test database gets the demo scenario too.
+say "Loading the demo scenario into $PG_DB ..."
+"$ROOT/node_modules/.bin/tsx" scripts/seed.ts || die "loading the demo data failed (see above)."
 
 # A new secret every run: test sessions never match demo ones and never outlive the run.
 NUXT_SESSION_PASSWORD="$(random_secret)"

@@ -18,18 +18,18 @@ export const useSessionStore = defineStore('session', {
       this.loaded = true
     },
     async signIn(body: { email: string, password: string }) {
-      this.user = await $fetch<CurrentUser>('/api/auth/sign-in', { method: 'POST', body })
+      this.user = await apiFetch<CurrentUser>('/api/auth/sign-in', { method: 'POST', body })
     },
     async signUp(body: { name: string, email: string, password: string }) {
-      this.user = await $fetch<CurrentUser>('/api/auth/sign-up', { method: 'POST', body })
+      this.user = await apiFetch<CurrentUser>('/api/auth/sign-up', { method: 'POST', body })
     },
     async signOut() {
-      await $fetch('/api/auth/sign-out', { method: 'POST' })
+      await apiFetch('/api/auth/sign-out', { method: 'POST' })
       this.user = null
       await clearNuxtData()
     },
     async update(body: { name?: string, units?: UnitSystem }) {
-      this.user = await $fetch<CurrentUser>('/api/me', { method: 'PATCH', body })
+      this.user = await apiFetch<CurrentUser>('/api/me', { method: 'PATCH', body })
     },
   },
 })

@@ -1,4 +1,4 @@
-import { sql } from 'drizzle-orm'
+import { fishListSql, type FishListQuery, type FishListRow } from '../db/queries/fish-list'
 import type { FishListItem, FishProfile, PondRole } from '#shared/types'
 import { ageInYears } from '#shared/utils/fish-schemas'
 import { fultonK } from '#shared/utils/condition'
@@ -16,71 +16,11 @@ export function toFishProfile(fish: FishRow, role: PondRole, pondName: string): 
   }
 }
 
-interface FishListRow extends Record<string, unknown> {
-  id: string
-  name: string
-  species: FishListItem['species']
-  scientific_name: string
-  variety: string
-  sex: string
-  hatch_year: number | null
-  hatch_year_estimated: boolean
-  microchip: string | null
-  status: FishListItem['status']
-  profile_photo_id: string | null
-  weight_g: number | null
-  length_cm: number | null
-  k_weight_g: number | null
-  weight_alert: boolean
-}
-
-export interface FishListQuery { q?: string, sort?: 'name' | 'age' | 'status' | 'condition', dir?: 'asc' | 'desc', status?: string }
-
-const ORDER = {
-  name: sql`f.name`,
-  age: sql`f.hatch_year`,
-  status: sql`f.status`,
-  condition: sql`k.condition_k`,
-}
-
 /**
- * The pond's fish with their latest measurement, condition factor and a weight-loss flag
- * (10 % or more below the highest weight of the 90 days before the latest one; common practice).
+ * The pond's fish with their latest measurement, condition factor and a weight-loss flag.
  */
 export async function listFish(pondId: string, query: FishListQuery): Promise<FishListItem[]> {
-  const search = query.q ? `%${query.q.replace(/[%_\\]/g, '\\$&')}%` : null
-  const chip = query.q ? query.q.replace(/[\s-]/g, '') : ''
-  const status = query.status ?? 'all'
-  // Age ascending means youngest first, i.e. the latest hatch year first.
-  const ascending = (query.dir ?? 'asc') === 'asc'
-  const direction = query.sort === 'age' ? (ascending ? sql`desc` : sql`asc`) : (ascending ? sql`asc` : sql`desc`)
-  const order = ORDER[query.sort ?? 'name']
-  const result = await useDb().execute<FishListRow>(sql`
-    select f.id, f.name, f.species, f.scientific_name, f.variety, f.sex, f.hatch_year, f.hatch_year_estimated,
-      f.microchip, f.status, f.profile_photo_id, w.weight_g, w.occurred_at as weighed_at, k.length_cm, k.condition_k,
-      coalesce(w.weight_g < 0.9 * w.recent_max, false) as weight_alert
-    from fish f
-    left join lateral (
-      select (e.data->>'weightG')::float8 as weight_g, e.occurred_at,
-        (select max((p.data->>'weightG')::float8) from timeline_entries p
-          where p.fish_id = f.id and p.kind = 'measurement' and not p.entered_in_error and p.data ? 'weightG'
-            and p.occurred_at between e.occurred_at - interval '90 days' and e.occurred_at) as recent_max
-      from timeline_entries e
-      where e.fish_id = f.id and e.kind = 'measurement' and not e.entered_in_error and e.data ? 'weightG'
-      order by e.occurred_at desc limit 1
-    ) w on true
-    left join lateral (
-      select (e.data->>'lengthCm')::float8 as length_cm, (e.data->>'weightG')::float8 as k_weight_g,
-        100 * (e.data->>'weightG')::float8 / power((e.data->>'lengthCm')::float8, 3) as condition_k
-      from timeline_entries e
-      where e.fish_id = f.id and e.kind = 'measurement' and not e.entered_in_error and e.data ? 'weightG' and e.data ? 'lengthCm'
-      order by e.occurred_at desc limit 1
-    ) k on true
-    where f.pond_id = ${pondId}
-      and (${status} = 'all' or f.status::text = ${status})
-      and (${search}::text is null or f.name ilike ${search} or f.variety ilike ${search} or (${chip} <> '' and f.microchip like ${chip} || '%'))
-    order by ${order} ${direction} nulls last, f.name asc
-  `)
+  const result = await useDb().execute<FishListRow>(fishListSql(pondId, query))
   return result.rows.map(r => ({
     id: r.id, name: r.name, species: r.species, scientificName: r.scientific_name, variety: r.variety, sex: r.sex,
     hatchYear: r.hatch_year, hatchYearEstimated: r.hatch_year_estimated, ageYears: ageInYears(r.hatch_year),

@@ -22,7 +22,7 @@ export async function assertSignInAllowed(event: H3Event, email: string) {
       .where(and(eq(schema.signInFailures.key, key), gt(schema.signInFailures.at, since)))
     if (row && row.n >= limit && row.oldest) {
       const retryAfter = Math.max(1, Math.ceil((new Date(row.oldest).getTime() + windowMs - Date.now()) / 1000))
-      setResponseHeader(event, 'Retry-After', String(retryAfter))
+      setResponseHeader(event, 'Retry-After', retryAfter)
       throw createError({ statusCode: 429, statusMessage: 'Too many failed sign-ins', message: `Too many failed sign-ins. Try again in ${Math.ceil(retryAfter / 60)} minutes, or reset your password.` })
     }
   }

@@ -2,7 +2,7 @@
 // NIST SP 811 and Handbook 44 (all of them exact by definition, so round trips are clean).
 
 export const UNIT_SYSTEMS = ['metric', 'us'] as const
-export type UnitSystem = typeof UNIT_SYSTEMS[number]
+type UnitSystem = typeof UNIT_SYSTEMS[number]
 
 export type UnitQuantity = 'mass' | 'length' | 'volume' | 'temperature'
 

@@ -19,9 +19,11 @@ let cached: TestEnv | undefined
 
 /** Written by scripts/test.sh after it has started the test database and the fake mail service. */
 export function testEnv(): TestEnv {
-  cached ??= JSON.parse(readFileSync(resolve(ROOT, 'storage/test-env.json'), 'utf8')) as TestEnv
+  // FINTRAIL_TEST_ENV lets a second person run test files against a database of their own.
+  cached ??= JSON.parse(readFileSync(resolve(ROOT, process.env.FINTRAIL_TEST_ENV ?? 'storage/test-env.json'), 'utf8')) as TestEnv
   return cached
 }
 
-export const MAIN_PORT = 3100
+// Overridable so that two people can run test files at once on one machine.
+export const MAIN_PORT = Number(process.env.FINTRAIL_TEST_PORT ?? 3100)
 export const MAIN_URL = `http://127.0.0.1:${MAIN_PORT}`

@@ -32,6 +32,7 @@ export async function startServer(port: number, extraEnv: Record<string, string>
       NUXT_SMTP_PORT: String(env.smtpPort),
       NUXT_STORAGE_DIR: env.storageDir,
       NUXT_TRUST_PROXY: 'true',
+      NUXT_SIGN_IN_IP_LIMIT: '30',
       ...extraEnv,
     },
     stdio: ['ignore', 'pipe', 'pipe'],

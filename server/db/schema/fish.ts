@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm'
-import { boolean, date, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { timestamps } from './columns'
 import { ponds } from './ponds'
 import { users } from './users'
@@ -45,3 +45,15 @@ export const fishEdits = pgTable('fish_edits', {
   index('fish_edits_fish_idx').on(t.fishId, t.createdAt),
   index('fish_edits_user_idx').on(t.userId),
 ])
+
+// Kept current by a trigger on timeline_entries (migration 0003), so the fish table needs no per-fish subqueries.
+export const fishMeasurementSummary = pgTable('fish_measurement_summary', {
+  fishId: uuid('fish_id').primaryKey().references(() => fish.id),
+  weightG: doublePrecision('weight_g'),
+  weighedAt: timestamp('weighed_at', { withTimezone: true }),
+  lengthCm: doublePrecision('length_cm'),
+  conditionWeightG: doublePrecision('condition_weight_g'),
+  conditionK: doublePrecision('condition_k'),
+  weightAlert: boolean('weight_alert').notNull().default(false),
+  updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+})

@@ -1,0 +1,45 @@
+import { mkdtempSync, mkdirSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join, resolve } from 'node:path'
+import { chromium, type BrowserContext, type Page } from 'playwright-core'
+import { MAIN_URL, ROOT } from './env'
+
+export const SCREENSHOT_DIR = resolve(ROOT, 'tests/screenshots')
+
+// Debian's Chromium, without the background traffic this closed network refuses.
+const CHROMIUM_ARGS = [
+  '--headless=new', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
+  '--disable-background-networking', '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage',
+]
+
+export async function openBrowser(width = 1280, height = 900): Promise<BrowserContext> {
+  const profile = mkdtempSync(join(tmpdir(), 'fintrail-chromium-'))
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    args: CHROMIUM_ARGS,
+    viewport: { width, height },
+    baseURL: MAIN_URL,
+  })
+  context.setDefaultTimeout(15_000)
+  return context
+}
+
+export async function signIn(page: Page, email: string, password: string) {
+  await page.goto('/sign-in')
+  await page.getByLabel('E-mail').fill(email)
+  await page.getByLabel('Password').fill(password)
+  await page.getByTestId('sign-in-submit').click()
+  await page.waitForURL(url => !url.pathname.startsWith('/sign-in'))
+}
+
+/** Saves the page at phone and desktop width into the git-ignored screenshot folder. */
+export async function screenshots(page: Page, name: string) {
+  mkdirSync(SCREENSHOT_DIR, { recursive: true })
+  const original = page.viewportSize()
+  for (const width of [390, 1280]) {
+    await page.setViewportSize({ width, height: width === 390 ? 844 : 900 })
+    await page.waitForTimeout(150)
+    await page.screenshot({ path: join(SCREENSHOT_DIR, `${name}-${width}.png`), fullPage: true })
+  }
+  if (original) await page.setViewportSize(original)
+}
