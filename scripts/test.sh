@@ -84,6 +84,14 @@ DATABASE_URL_JSON="$DATABASE_URL" PG_DATA_DIR_JSON="$PGDATA_DIR" PG_PORT_JSON="$
   ' "$TEST_ENV_FILE"
 chmod 600 "$TEST_ENV_FILE"
 
+# `npm test -- --setup-only` leaves the database and the mail service running for running single test files.
+if [ "${1:-}" = "--setup-only" ]; then
+  STOPPED=1
+  trap - INT TERM EXIT
+  say "Test environment ready ($TEST_ENV_FILE). Run single files with: npx vitest run tests/api/<file>"
+  exit 0
+fi
+
 BIN="$ROOT/node_modules/.bin"
 prepare_status=0 lint_status=0 typecheck_status=0 build_status=0 vitest_status=0
 

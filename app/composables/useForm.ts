@@ -6,6 +6,7 @@ import { fieldErrorsFrom } from '#shared/utils/field-errors'
 /**
  * One way for every form: check with the same zod schema the server uses, send, and show
  * the server's field messages if it still refuses. What was typed stays when the network fails.
+ * Resolves to what `send` returned, or undefined when nothing was sent or it failed: `send` must return a value.
  */
 export function useForm<S extends z.ZodType>(schema: S) {
   const errors = ref<FieldErrors>({})

@@ -19,9 +19,11 @@ export const useSessionStore = defineStore('session', {
     },
     async signIn(body: { email: string, password: string }) {
       this.user = await apiFetch<CurrentUser>('/api/auth/sign-in', { method: 'POST', body })
+      return this.user
     },
     async signUp(body: { name: string, email: string, password: string }) {
       this.user = await apiFetch<CurrentUser>('/api/auth/sign-up', { method: 'POST', body })
+      return this.user
     },
     async signOut() {
       await apiFetch('/api/auth/sign-out', { method: 'POST' })

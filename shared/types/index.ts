@@ -86,3 +86,37 @@ export interface FishEditRecord {
   by: string
   changes: { field: string, from: unknown, to: unknown }[]
 }
+
+export const PHOTO_VIEWS = ['top', 'left', 'right', 'closeup', 'other'] as const
+export type PhotoView = typeof PHOTO_VIEWS[number]
+export type PhotoState = 'pending' | 'ready' | 'failed'
+
+export interface PhotoItem {
+  id: string
+  fishId: string
+  uploaderName: string
+  view: PhotoView
+  caption: string
+  originalName: string
+  /** From the photo's own EXIF date (the camera's clock), null when it had none. */
+  takenAt: string | null
+  uploadedAt: string
+  state: PhotoState
+  failureReason: string | null
+  width: number | null
+  height: number | null
+  isProfile: boolean
+  canEdit: boolean
+  canRemove: boolean
+  removedAt: string | null
+  /** When a removed photo is deleted for good. */
+  purgeAt: string | null
+}
+
+export interface FishPhotos {
+  photos: PhotoItem[]
+  /** Removed in the last 30 days and restorable by the caller (their own uploads; all of them for an owner). */
+  removed: PhotoItem[]
+  canUpload: boolean
+  canSetProfile: boolean
+}

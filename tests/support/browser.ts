@@ -24,8 +24,10 @@ export async function openBrowser(width = 1280, height = 900): Promise<BrowserCo
   return context
 }
 
+/** Signs in on a clean slate: pages of one context share cookies, so whoever was signed in before is forgotten. */
 export async function signIn(page: Page, email: string, password: string) {
-  await page.goto('/sign-in')
+  await page.context().clearCookies()
+  await page.goto('/sign-in', { waitUntil: 'networkidle' })
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
   await page.getByTestId('sign-in-submit').click()

@@ -1,4 +1,5 @@
-import { index, integer, jsonb, pgEnum, pgTable, text, timestamp, uuid, varchar } from 'drizzle-orm/pg-core'
+import { sql } from 'drizzle-orm'
+import { index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { fish } from './fish'
 import { users } from './users'
 
@@ -33,4 +34,7 @@ export const photos = pgTable('photos', {
   index('photos_fish_idx').on(t.fishId, t.createdAt),
   index('photos_uploader_idx').on(t.uploaderId),
   index('photos_removed_by_idx').on(t.removedById),
+  // The same bytes twice on one fish are one photo: a client that re-sends a finished upload gets the first back.
+  uniqueIndex('photos_fish_sha256_live_unique').on(t.fishId, t.sha256).where(sql`${t.removedAt} is null and ${t.sha256} is not null`),
+  index('photos_removed_at_idx').on(t.removedAt).where(sql`${t.removedAt} is not null`),
 ])

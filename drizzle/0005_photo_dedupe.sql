@@ -1,0 +1,2 @@
+CREATE UNIQUE INDEX "photos_fish_sha256_live_unique" ON "photos" USING btree ("fish_id","sha256") WHERE "photos"."removed_at" is null and "photos"."sha256" is not null;--> statement-breakpoint
+CREATE INDEX "photos_removed_at_idx" ON "photos" USING btree ("removed_at") WHERE "photos"."removed_at" is not null;

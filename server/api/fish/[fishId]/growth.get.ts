@@ -1,0 +1,27 @@
+import { fishIdParams } from '#shared/utils/fish-schemas'
+import { fultonK, weightChangeAlert } from '#shared/utils/condition'
+import type { FishGrowth, GrowthMarker } from '#shared/types/timeline'
+import { growthSql, type GrowthRow } from '../../../db/queries/timeline'
+
+function markerLabel(kind: 'procedure' | 'treatment' | 'death', data: Record<string, unknown>) {
+  if (kind === 'procedure') return [data.name, data.side && data.side !== 'not_applicable' ? `(${data.side})` : ''].filter(Boolean).join(' ')
+  if (kind === 'treatment') return `${data.drug} (${String(data.route).replace('_', ' ')})`
+  return 'Died'
+}
+
+export default defineEventHandler(async (event): Promise<FishGrowth> => {
+  const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
+  const { fish } = await requireFishRole(event, fishId)
+  const { rows: [row] } = await useDb().execute<GrowthRow>(growthSql(fishId))
+  const g = row!
+  const points = g.points.map(p => ({
+    entryId: p.entryId, at: new Date(p.at).toISOString(), weightG: p.weightG ?? null, lengthCm: p.lengthCm ?? null,
+    lengthType: p.lengthType ?? 'total', conditionK: p.weightG != null && p.lengthCm != null ? fultonK(p.weightG, p.lengthCm) : null,
+  }))
+  const markers: GrowthMarker[] = [
+    ...g.events.map(e => ({ entryId: e.entryId, at: new Date(e.at).toISOString(), kind: e.kind, label: markerLabel(e.kind, e.data) })),
+    ...g.companion_deaths.map(d => ({ entryId: d.entryId, at: new Date(d.at).toISOString(), kind: 'companion_death' as const, label: `${d.fishName} died` })),
+  ].sort((a, b) => a.at.localeCompare(b.at))
+  const weights = points.filter(p => p.weightG != null).map(p => ({ date: p.at, weightG: p.weightG! }))
+  return { points, markers, alerts: weightChangeAlert(weights, fish.hatchYear != null ? { hatchYear: fish.hatchYear } : {}) }
+})

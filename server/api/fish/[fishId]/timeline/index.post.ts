@@ -1,0 +1,46 @@
+import { eq } from 'drizzle-orm'
+import { fishIdParams } from '#shared/utils/fish-schemas'
+import { entryCreateSchema } from '#shared/utils/timeline-schemas'
+
+export default defineEventHandler(async (event) => {
+  const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
+  const { user, role, fish } = await requireFishRole(event, fishId)
+  await refuseKindOutright(event, role)
+  const input = await readValidated(event, entryCreateSchema)
+  refuseWrite(role, input.kind, input.data)
+  const anaesthesia = input.kind === 'procedure' ? input.anaesthesia : undefined
+  if (anaesthesia) refuseWrite(role, 'anaesthesia', anaesthesia)
+
+  const written = await useDb().transaction(async (tx) => {
+    await lockFish(tx, fishId)
+    // A retried send after a lost answer: the entry it already wrote is the answer.
+    if (input.id) {
+      const [existing] = await tx.select().from(schema.timelineEntries).where(eq(schema.timelineEntries.id, input.id))
+      if (existing) {
+        if (existing.fishId !== fishId || existing.authorId !== user.id || existing.kind !== input.kind) {
+          throw createError({ statusCode: 409, statusMessage: 'Id in use', message: 'This entry id belongs to another entry' })
+        }
+        return { entry: existing, linked: existing.linkedEntryId, created: false }
+      }
+    }
+    const occurredAt = new Date(input.occurredAt)
+    let data: Record<string, unknown> = input.data
+    let linked: string | null = null
+    if (anaesthesia) {
+      const record = await insertEntry(tx, { fish, kind: 'anaesthesia', occurredAt, authorId: user.id, data: anaesthesia })
+      linked = record.id
+      data = { ...data, anaesthesiaEntryId: record.id }
+    }
+    await checkEntryReferences(tx, fish, input.kind, data)
+    const entry = await insertEntry(tx, { id: input.id, fish, kind: input.kind, occurredAt, authorId: user.id, data })
+    if (input.kind === 'death') await syncDeathStatus(tx, fish, user.id, true)
+    return { entry, linked: linked ?? entry.linkedEntryId, created: true }
+  })
+
+  const context = { species: fish.species, userId: user.id, role }
+  setResponseStatus(event, written.created ? 201 : 200)
+  return {
+    entry: await entryView(written.entry.id, context),
+    anaesthesia: written.linked ? await entryView(written.linked, context) : null,
+  }
+})

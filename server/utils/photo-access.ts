@@ -1,0 +1,65 @@
+import type { H3Event } from 'h3'
+import { and, eq } from 'drizzle-orm'
+import type { CurrentUser, PhotoItem, PondRole } from '#shared/types'
+import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
+
+export type PhotoRow = typeof schema.photos.$inferSelect
+
+// Owners photograph their fish, keepers record photos, vets photograph at exams.
+export const PHOTO_ADD_ROLES: readonly PondRole[] = ['owner', 'keeper', 'vet']
+export const PROFILE_PHOTO_ROLES: readonly PondRole[] = ['owner', 'keeper']
+
+export function mayRemovePhoto(photo: Pick<PhotoRow, 'uploaderId'>, user: CurrentUser, role: PondRole) {
+  return role === 'owner' || photo.uploaderId === user.id
+}
+
+/** View and caption: the uploader, and those who look after the fish's record (owner, keeper). */
+export function mayEditPhoto(photo: Pick<PhotoRow, 'uploaderId'>, user: CurrentUser, role: PondRole) {
+  return role === 'owner' || role === 'keeper' || photo.uploaderId === user.id
+}
+
+export interface PhotoAccess {
+  user: CurrentUser
+  role: PondRole
+  photo: PhotoRow
+  fish: typeof schema.fish.$inferSelect
+}
+
+/** A photo exists for the caller only through a membership of its fish's pond: anyone else gets 404. */
+export async function requirePhotoAccess(event: H3Event, photoId: string): Promise<PhotoAccess> {
+  const user = requireUser(event)
+  const [row] = await useDb().select({ photo: schema.photos, fish: schema.fish, role: schema.memberships.role })
+    .from(schema.photos)
+    .innerJoin(schema.fish, eq(schema.fish.id, schema.photos.fishId))
+    .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
+    .where(eq(schema.photos.id, photoId))
+    .limit(1)
+  if (!row) throw createError({ statusCode: 404, statusMessage: 'Photo not found' })
+  return { user, role: row.role as PondRole, photo: row.photo, fish: row.fish }
+}
+
+export function purgeDate(removedAt: Date) {
+  return new Date(removedAt.getTime() + RECOVERABLE_DAYS * 86_400_000)
+}
+
+export function toPhotoItem(photo: PhotoRow, uploaderName: string, context: { user: CurrentUser, role: PondRole, profilePhotoId: string | null }): PhotoItem {
+  return {
+    id: photo.id,
+    fishId: photo.fishId,
+    uploaderName,
+    view: photo.view,
+    caption: photo.caption,
+    originalName: photo.originalName,
+    takenAt: photo.takenAt?.toISOString() ?? null,
+    uploadedAt: photo.createdAt.toISOString(),
+    state: photo.state,
+    failureReason: photo.failureReason,
+    width: photo.width,
+    height: photo.height,
+    isProfile: context.profilePhotoId === photo.id,
+    canEdit: mayEditPhoto(photo, context.user, context.role),
+    canRemove: mayRemovePhoto(photo, context.user, context.role),
+    removedAt: photo.removedAt?.toISOString() ?? null,
+    purgeAt: photo.removedAt ? purgeDate(photo.removedAt).toISOString() : null,
+  }
+}

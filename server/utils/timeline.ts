@@ -1,0 +1,241 @@
+import type { H3Event } from 'h3'
+import { and, eq, ne, sql } from 'drizzle-orm'
+import type { z } from 'zod'
+import type { FieldErrors, PondRole } from '#shared/types'
+import type { TimelineEntryView } from '#shared/types/timeline'
+import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, isEnucleation, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
+import { amendDecision, ENTRY_RULES, writeDecision } from '#shared/utils/timeline-rules'
+import { analyteFlag, enucleationConflict, eyeState, isProlongedRecovery, measurementDerived, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
+import { fieldErrorsFrom } from '#shared/utils/field-errors'
+import type { TimelineRow } from '../db/queries/timeline'
+import type { Tx } from './db'
+
+type EntryRow = typeof schema.timelineEntries.$inferSelect
+type FishRow = typeof schema.fish.$inferSelect
+
+export function isEntryKind(kind: string): kind is EntryKind {
+  return (ENTRY_KINDS as readonly string[]).includes(kind)
+}
+
+export function badEntry(fieldErrors: FieldErrors, message = 'Some fields need attention') {
+  return createError({ statusCode: 400, statusMessage: 'Invalid input', message, data: { fieldErrors } })
+}
+
+export function refuseWrite(role: PondRole, kind: EntryKind, data: Record<string, unknown>) {
+  const decision = writeDecision(role, kind, data)
+  if (decision.allowed) return
+  throw createError({
+    statusCode: 403,
+    statusMessage: 'Not allowed',
+    message: decision.message,
+    data: { fieldErrors: decision.field ? { [decision.field]: [decision.message] } : {} },
+  })
+}
+
+/**
+ * A role that may never write a kind (a keeper and an exam) is refused before the fields are
+ * checked: telling them which fields are missing would only invite them to fill them in.
+ */
+export async function refuseKindOutright(event: H3Event, role: PondRole) {
+  let body: unknown
+  try {
+    body = await readBody(event)
+  }
+  catch {
+    return // readValidated answers with the 400
+  }
+  const kind = (body as { kind?: unknown } | null)?.kind
+  if (typeof kind !== 'string' || !isEntryKind(kind)) return
+  const rule = ENTRY_RULES[kind]
+  if (!rule.roles.includes(role) && !rule.limited?.roles.includes(role)) refuseWrite(role, kind, {})
+}
+
+/** Checks amended fields against the entry's own kind; messages carry the same `data.` paths as a new entry's. */
+export function validateEntryData<K extends EntryKind>(kind: K, data: unknown): z.output<typeof ENTRY_DATA_SCHEMAS[K]> {
+  const result = ENTRY_DATA_SCHEMAS[kind].safeParse(data)
+  if (!result.success) {
+    const errors = fieldErrorsFrom(result.error)
+    throw badEntry(Object.fromEntries(Object.entries(errors).map(([key, list]) => [key === '_' ? 'data' : `data.${key}`, list])))
+  }
+  return result.data as z.output<typeof ENTRY_DATA_SCHEMAS[K]>
+}
+
+export interface EntryAccess {
+  user: { id: string, name: string }
+  role: PondRole
+  fish: FishRow
+  entry: EntryRow
+}
+
+/** An entry is reached through its fish: only members of the pond the fish lives in see it (404 otherwise). */
+export async function requireEntryAccess(event: H3Event, entryId: string): Promise<EntryAccess> {
+  const user = requireUser(event)
+  const [row] = await useDb().select({ entry: schema.timelineEntries, fish: schema.fish, role: schema.memberships.role })
+    .from(schema.timelineEntries)
+    .innerJoin(schema.fish, eq(schema.fish.id, schema.timelineEntries.fishId))
+    .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
+    .where(eq(schema.timelineEntries.id, entryId))
+    .limit(1)
+  if (!row) throw createError({ statusCode: 404, statusMessage: 'Entry not found' })
+  return { user, role: row.role as PondRole, fish: row.fish, entry: row.entry }
+}
+
+export function refuseAmend(access: EntryAccess) {
+  const { entry, user, role } = access
+  if (!isEntryKind(entry.kind)) throw createError({ statusCode: 400, statusMessage: 'Not amendable here', message: 'This kind of entry is corrected where it was made' })
+  const decision = amendDecision({ userId: user.id, role }, { authorId: entry.authorId, kind: entry.kind, data: entry.data })
+  if (!decision.allowed) throw createError({ statusCode: 403, statusMessage: 'Not allowed', message: decision.message })
+  return entry.kind
+}
+
+// ---- checks that need the database --------------------------------------------------------------
+
+async function eyeStateOf(tx: Tx, fishId: string, exceptEntryId?: string) {
+  const rows = await tx.select({ id: schema.timelineEntries.id, occurredAt: schema.timelineEntries.occurredAt, data: schema.timelineEntries.data })
+    .from(schema.timelineEntries)
+    .where(and(
+      eq(schema.timelineEntries.fishId, fishId), eq(schema.timelineEntries.kind, 'procedure'), eq(schema.timelineEntries.enteredInError, false),
+      exceptEntryId ? ne(schema.timelineEntries.id, exceptEntryId) : undefined,
+    ))
+  const removals: EyeRemoval[] = rows
+    .filter(r => isEnucleation(String(r.data.name ?? '')))
+    .map(r => ({ entryId: r.id, on: r.occurredAt.toISOString().slice(0, 10), side: r.data.side as EyeRemoval['side'] }))
+  return eyeState(removals)
+}
+
+/**
+ * What an entry points at must make sense: an eye is removed once, a companion lives in the same
+ * pond, a linked anaesthesia record and a photo belong to this fish, a fish dies once.
+ */
+export async function checkEntryReferences(tx: Tx, fish: FishRow, kind: EntryKind, data: Record<string, unknown>, exceptEntryId?: string) {
+  if (kind === 'procedure' && isEnucleation(String(data.name))) {
+    const conflict = enucleationConflict(await eyeStateOf(tx, fish.id, exceptEntryId), data.side as EyeRemoval['side'])
+    if (conflict) throw badEntry({ 'data.side': [conflict] }, conflict)
+  }
+  if (kind === 'procedure' && typeof data.anaesthesiaEntryId === 'string') {
+    const [linked] = await tx.select({ id: schema.timelineEntries.id }).from(schema.timelineEntries).where(and(
+      eq(schema.timelineEntries.id, data.anaesthesiaEntryId), eq(schema.timelineEntries.fishId, fish.id),
+      eq(schema.timelineEntries.kind, 'anaesthesia'), eq(schema.timelineEntries.enteredInError, false),
+    ))
+    if (!linked) throw badEntry({ 'data.anaesthesiaEntryId': ['Not an anaesthesia record of this fish'] })
+  }
+  if (kind === 'companion') {
+    const relatedId = String(data.relatedFishId)
+    const [other] = await tx.select({ id: schema.fish.id }).from(schema.fish)
+      .where(and(eq(schema.fish.id, relatedId), eq(schema.fish.pondId, fish.pondId)))
+    if (relatedId === fish.id) throw badEntry({ 'data.relatedFishId': ['Choose another fish, not this one'] })
+    if (!other) throw badEntry({ 'data.relatedFishId': ['Choose a fish of the same pond'] })
+  }
+  if (kind === 'observation' && typeof data.photoId === 'string') {
+    const [photo] = await tx.select({ id: schema.photos.id }).from(schema.photos)
+      .where(and(eq(schema.photos.id, data.photoId), eq(schema.photos.fishId, fish.id), sql`${schema.photos.removedAt} is null`))
+    if (!photo) throw badEntry({ 'data.photoId': ['Choose one of this fish’s photos'] })
+  }
+  if (kind === 'death') {
+    const [earlier] = await tx.select({ at: schema.timelineEntries.occurredAt }).from(schema.timelineEntries).where(and(
+      eq(schema.timelineEntries.fishId, fish.id), eq(schema.timelineEntries.kind, 'death'), eq(schema.timelineEntries.enteredInError, false),
+      exceptEntryId ? ne(schema.timelineEntries.id, exceptEntryId) : undefined,
+    ))
+    if (earlier) throw badEntry({ _: [`A death is already recorded on ${earlier.at.toISOString().slice(0, 10)}`] })
+  }
+}
+
+/** The columns that mirror parts of the data, so joins and indexes need not read JSON. */
+export function mirroredColumns(kind: EntryKind, data: Record<string, unknown>) {
+  return {
+    relatedFishId: kind === 'companion' ? String(data.relatedFishId) : null,
+    linkedEntryId: kind === 'procedure' && typeof data.anaesthesiaEntryId === 'string' ? data.anaesthesiaEntryId : null,
+    photoId: kind === 'observation' && typeof data.photoId === 'string' ? data.photoId : null,
+  }
+}
+
+/** Writes an entry and its first revision; the database refuses an entry changed without one. */
+export async function insertEntry(tx: Tx, values: { id?: string, fish: FishRow, kind: EntryKind, occurredAt: Date, authorId: string, data: Record<string, unknown> }) {
+  const [entry] = await tx.insert(schema.timelineEntries).values({
+    ...(values.id ? { id: values.id } : {}),
+    fishId: values.fish.id, pondId: values.fish.pondId, kind: values.kind, occurredAt: values.occurredAt,
+    authorId: values.authorId, data: values.data, ...mirroredColumns(values.kind, values.data),
+  }).returning()
+  await tx.insert(schema.timelineRevisions).values({ entryId: entry!.id, revision: 1, occurredAt: entry!.occurredAt, data: entry!.data, authorId: values.authorId })
+  return entry!
+}
+
+/** A death makes the fish deceased; a death entered in error makes it alive again unless another death stands. */
+export async function syncDeathStatus(tx: Tx, fish: FishRow, userId: string, deceased: boolean) {
+  const [current] = await tx.select({ status: schema.fish.status, version: schema.fish.version }).from(schema.fish).where(eq(schema.fish.id, fish.id))
+  if (!current) return
+  const to = deceased ? 'deceased' : 'alive'
+  if (deceased ? current.status === 'deceased' : current.status !== 'deceased') return
+  await tx.update(schema.fish).set({ status: to, version: current.version + 1, updatedAt: new Date() }).where(eq(schema.fish.id, fish.id))
+  await tx.insert(schema.fishEdits).values({ fishId: fish.id, userId, changes: [{ field: 'status', from: current.status, to }] })
+}
+
+export async function lockFish(tx: Tx, fishId: string) {
+  await tx.execute(sql`select id from fish where id = ${fishId} for update`)
+}
+
+// ---- answers ------------------------------------------------------------------------------------
+
+interface ViewContext { species: string, userId: string, role: PondRole }
+
+function derivedFor(kind: TimelineKind, data: Record<string, unknown>, species: string): TimelineEntryView['derived'] {
+  if (kind === 'measurement') return measurementDerived(data as Parameters<typeof measurementDerived>[0], species)
+  if (kind === 'anaesthesia') return { prolongedRecovery: isProlongedRecovery(data.recoveryMinutes as number | undefined) }
+  if (kind === 'lab_result') return { analyteFlags: ((data.analytes ?? []) as { value: number, low?: number, high?: number }[]).map(analyteFlag) }
+  if (kind === 'treatment') return { treatmentLastDay: treatmentLastDay(data as Parameters<typeof treatmentLastDay>[0]) }
+  return {}
+}
+
+function canAmend(kind: TimelineKind, authorId: string | null, data: Record<string, unknown>, enteredInError: boolean, context: ViewContext) {
+  if (enteredInError || !authorId || !isEntryKind(kind)) return false
+  return amendDecision({ userId: context.userId, role: context.role }, { authorId, kind, data }).allowed
+}
+
+export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntryView {
+  const isPhoto = row.kind === 'photo'
+  return {
+    id: row.id,
+    kind: row.kind,
+    occurredAt: new Date(row.occurred_at).toISOString(),
+    author: row.author_id ? { id: row.author_id, name: row.author_name ?? '' } : null,
+    data: row.data,
+    revision: row.revision,
+    enteredInError: row.entered_in_error,
+    errorReason: row.error_reason,
+    errorBy: row.error_by_name,
+    errorAt: row.error_at ? new Date(row.error_at).toISOString() : null,
+    viewpoint: row.viewpoint,
+    otherFish: row.other_fish_id ? { id: row.other_fish_id, name: row.other_fish_name ?? '' } : null,
+    linkedEntryId: row.linked_entry_id,
+    photo: isPhoto ? { id: row.id, caption: String(row.data.caption ?? ''), view: String(row.data.view ?? 'other') } : null,
+    derived: derivedFor(row.kind, row.data, context.species),
+    canAmend: row.viewpoint === 'subject' && canAmend(row.kind, row.author_id, row.data, row.entered_in_error, context),
+    createdAt: new Date(row.created_at).toISOString(),
+  }
+}
+
+/** The answer for an entry just written or changed, read back the same way the timeline reads it. */
+export async function entryView(entryId: string, context: ViewContext): Promise<TimelineEntryView> {
+  const result = await useDb().execute<TimelineRow>(sql`
+    select e.id, e.kind::text as kind, e.occurred_at, e.author_id, author.name as author_name, e.data, e.revision, e.entered_in_error,
+      e.error_reason, marker.name as error_by_name, e.error_at, 'subject' as viewpoint, e.related_fish_id as other_fish_id,
+      other.name as other_fish_name, e.linked_entry_id, e.photo_id, e.created_at, '' as cursor_at
+    from timeline_entries e
+    left join users author on author.id = e.author_id
+    left join users marker on marker.id = e.error_by_id
+    left join fish other on other.id = e.related_fish_id
+    where e.id = ${entryId}`)
+  return rowToView(result.rows[0]!, context)
+}
+
+export function encodeCursor(row: { cursor_at: string, id: string }) {
+  return Buffer.from(`${row.cursor_at}|${row.id}`).toString('base64url')
+}
+
+export function decodeCursor(cursor: string | undefined) {
+  if (!cursor) return null
+  const [at, id] = Buffer.from(cursor, 'base64url').toString('utf8').split('|')
+  const wellFormed = at && id && /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z$/.test(at) && /^[0-9a-f-]{36}$/i.test(id)
+  if (!wellFormed) throw badEntry({ before: ['Not a page marker from this timeline'] })
+  return { at, id }
+}

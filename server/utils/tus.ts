@@ -1,0 +1,126 @@
+import type { IncomingMessage } from 'node:http'
+import { FileStore } from '@tus/file-store'
+import { Server, type Upload } from '@tus/server'
+import type { H3Event } from 'h3'
+import { joinURL } from 'ufo'
+import { MAX_UPLOAD_BYTES, UPLOAD_EXPIRY_HOURS } from '#shared/utils/photo-limits'
+import { uploadMetadataSchema } from '#shared/utils/photo-schemas'
+import { PHOTO_ADD_ROLES } from './photo-access'
+import { PhotoRejection } from './photo-files'
+import { finishUpload } from './photo-pipeline'
+import { UPLOAD_ID_PATTERN, uploadsDir } from './photo-storage'
+
+/** What a tus hook throws to answer the client: @tus/server sends `status_code` and `body` as they are. */
+export class TusResponse extends Error {
+  constructor(public status_code: number, public body: string) {
+    super(body)
+  }
+}
+
+// tus hooks get a web Request; the H3 event (session, runtime config) is found again through the Node request.
+const eventsByRequest = new WeakMap<IncomingMessage, H3Event>()
+
+function eventOf(req: Request): H3Event {
+  const node = (req as Request & { runtime?: { node?: { req?: IncomingMessage } } }).runtime?.node?.req
+  const event = node ? eventsByRequest.get(node) : undefined
+  if (!event) throw new TusResponse(500, 'The upload request lost its context; try again.\n')
+  return event
+}
+
+/** Turns our own and H3's errors into the shape tus answers with; anything unexpected is logged and stays vague. */
+function toTusResponse(error: unknown): TusResponse | { status_code: number, body: string } {
+  if (error instanceof TusResponse) return error
+  if (error instanceof PhotoRejection) return new TusResponse(error.status, `${error.message}\n`)
+  if (isError(error)) return new TusResponse(error.statusCode, `${error.message || error.statusMessage}\n`)
+  const tusError = error as { status_code?: number, body?: string }
+  if (typeof tusError?.status_code === 'number' && typeof tusError.body === 'string') return { status_code: tusError.status_code, body: tusError.body }
+  console.error('[uploads] unexpected error:', error)
+  return new TusResponse(500, 'The server could not store this upload. Try again; the bytes already sent are kept.\n')
+}
+
+async function guard<T>(work: () => Promise<T>): Promise<T> {
+  try {
+    return await work()
+  }
+  catch (error) {
+    throw toTusResponse(error)
+  }
+}
+
+let tus: Server | undefined
+
+export function useTusServer(): Server {
+  if (tus) return tus
+  const config = useRuntimeConfig()
+  const origins = new Set(String(config.appOrigin || '').split(',').map(s => s.trim()).filter(Boolean))
+  const store = new FileStore({ directory: uploadsDir(), expirationPeriodInMilliseconds: UPLOAD_EXPIRY_HOURS * 3600_000 })
+  tus = new Server({
+    path: joinURL(config.app.baseURL, '/api/uploads'),
+    datastore: store,
+    relativeLocation: true,
+    maxSize: MAX_UPLOAD_BYTES,
+    // Not the "*" default: only our own pages may read tus answers from another origin.
+    allowedOrigins: origin => origins.has(origin),
+    // A finished upload is a photo now: it is removed through the gallery, not by a tus DELETE.
+    disableTerminationForFinishedUploads: true,
+
+    // Every method but OPTIONS passes here (POST, HEAD, PATCH, DELETE and GET): a session always, and for an
+    // existing upload, being its uploader and still allowed to add photos to its fish.
+    onIncomingRequest: (req, id) => guard(async () => {
+      const event = eventOf(req)
+      requireUser(event)
+      if (req.method === 'POST') return
+      if (!UPLOAD_ID_PATTERN.test(id)) throw new TusResponse(404, 'Upload not found\n')
+      const upload = await store.getUpload(id).catch(() => null)
+      if (!upload || upload.metadata?.uploaderId !== event.context.auth!.user.id) throw new TusResponse(404, 'Upload not found\n')
+      await requireFishRole(event, String(upload.metadata.fishId), PHOTO_ADD_ROLES)
+      // tus would hand the raw bytes (GPS included) to anyone allowed this far.
+      if (req.method === 'GET') throw new TusResponse(405, 'Uploads are not downloadable; a finished photo is shown through /api/photos.\n')
+    }),
+
+    // Before a single byte is stored: who may add photos to which fish, and what the client may claim.
+    onUploadCreate: (req, upload) => guard(async () => {
+      const event = eventOf(req)
+      if (upload.sizeIsDeferred) throw new TusResponse(400, 'Send the file size with the upload (Upload-Length); uploads of unknown length are not accepted.\n')
+      if (upload.size === 0) throw new PhotoRejection(422, 'The file is empty (0 bytes). Pick the photo again from the phone\'s gallery.')
+      const metadata = upload.metadata ?? {}
+      const parsed = uploadMetadataSchema.safeParse({
+        fishId: metadata.fishId ?? undefined,
+        filename: metadata.filename ?? metadata.name ?? undefined,
+        view: metadata.view || undefined,
+        caption: metadata.caption ?? undefined,
+      })
+      if (!parsed.success) {
+        const problems = parsed.error.issues.map(issue => `${issue.path.join('.')}: ${issue.message}`).join('; ')
+        throw new TusResponse(400, `Upload-Metadata is incomplete: ${problems}\n`)
+      }
+      const { user } = await requireFishRole(event, parsed.data.fishId, PHOTO_ADD_ROLES)
+      // Stored server-side with the upload; the client cannot change it later.
+      return { metadata: { ...parsed.data, uploaderId: user.id } }
+    }),
+
+    onUploadFinish: (_req, upload) => guard(async () => {
+      const outcome = await finishUpload(upload.id, { size: upload.size ?? 0, metadata: upload.metadata ?? {} })
+      if (outcome === 'busy') return { headers: { 'Photo-State': 'pending' } }
+      return { headers: { 'Photo-Id': outcome.photo.id, 'Photo-State': outcome.photo.state, 'Photo-Duplicate': outcome.duplicate ? 'yes' : 'no' } }
+    }),
+
+    onResponseError: (_req, error) => toTusResponse(error),
+  })
+  return tus
+}
+
+export function tusStore(): FileStore {
+  return useTusServer().datastore as FileStore
+}
+
+export async function readUpload(uploadId: string): Promise<Upload | null> {
+  return tusStore().getUpload(uploadId).catch(() => null)
+}
+
+/** Hands the request to tus, keeping the H3 event at hand for the hooks. */
+export async function handleTusRequest(event: H3Event) {
+  const server = useTusServer()
+  eventsByRequest.set(event.node.req, event)
+  await server.handle(event.node.req, event.node.res)
+}

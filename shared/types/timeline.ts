@@ -1,0 +1,98 @@
+// The shapes the timeline routes answer with.
+import type { TimelineKind } from '../utils/timeline-schemas'
+import type { WeightChangeAlert } from '../utils/condition'
+
+export interface PersonRef { id: string, name: string }
+export interface FishRef { id: string, name: string }
+
+export interface TimelineEntryView {
+  id: string
+  kind: TimelineKind
+  occurredAt: string
+  author: PersonRef | null
+  data: Record<string, unknown>
+  revision: number
+  enteredInError: boolean
+  errorReason: string | null
+  errorBy: string | null
+  errorAt: string | null
+  /** 'related' when this is a companion note written on the other fish and shown here too. */
+  viewpoint: 'subject' | 'related'
+  /** For a companion note: the fish on the other side, seen from this timeline. */
+  otherFish: FishRef | null
+  linkedEntryId: string | null
+  photo: { id: string, caption: string, view: string } | null
+  derived: {
+    conditionK?: number | null
+    relativeWeight?: number | null
+    prolongedRecovery?: boolean
+    analyteFlags?: ('low' | 'high' | null)[]
+    treatmentLastDay?: string | null
+  }
+  /** Whether the person asking may amend it or mark it entered in error. */
+  canAmend: boolean
+  createdAt: string
+}
+
+export interface TimelinePage {
+  entries: TimelineEntryView[]
+  nextCursor: string | null
+}
+
+export interface TimelineRevisionView {
+  revision: number
+  occurredAt: string
+  data: Record<string, unknown>
+  author: PersonRef
+  reason: string | null
+  createdAt: string
+}
+
+export interface StandingFacts {
+  eyes: {
+    left: { on: string, entryId: string } | null
+    right: { on: string, entryId: string } | null
+    summary: string
+  }
+  problems: { entryId: string, name: string, status: 'active' | 'suspected', onset: string }[]
+  treatments: { entryId: string, drug: string, route: string, dose: number, doseUnit: string, startOn: string, lastDay: string | null }[]
+  latestWeight: { weightG: number, at: string, entryId: string } | null
+  latestLength: { lengthCm: number, lengthType: string, at: string, entryId: string } | null
+  lastExam: { at: string, entryId: string, by: string, reason: string } | null
+  companions: { entryId: string, fish: FishRef, words: string, relation: string }[]
+  death: { at: string, cause: string, entryId: string } | null
+}
+
+export interface GrowthPoint {
+  entryId: string
+  at: string
+  weightG: number | null
+  lengthCm: number | null
+  lengthType: string
+  conditionK: number | null
+}
+
+export interface GrowthMarker {
+  entryId: string
+  at: string
+  kind: 'procedure' | 'treatment' | 'death' | 'companion_death'
+  label: string
+}
+
+export interface FishGrowth {
+  points: GrowthPoint[]
+  markers: GrowthMarker[]
+  alerts: WeightChangeAlert[]
+}
+
+export interface LengthWeightSeries {
+  species: string
+  fit: { a: number, b: number, r2: number, n: number } | null
+  fish: { id: string, name: string, points: { lengthCm: number, weightG: number, at: string }[] }[]
+}
+
+export interface PondLengthWeight {
+  series: LengthWeightSeries[]
+  /** Measurements left out of the fit because the length was not total length. */
+  otherLengthTypes: number
+}

@@ -1,0 +1,293 @@
+// What each kind of timeline entry holds. One zod schema per kind checks the form before it is
+// sent and the route when it arrives; `entryCreateSchema` is their union with `kind` as the key.
+// Values are stored in metric units; the typed text may be kept beside them in `entered`.
+import { z } from 'zod'
+
+/** Kinds a person writes through the timeline. 'photo' comes from the photos table; moves and owner changes come later. */
+export const ENTRY_KINDS = ['measurement', 'observation', 'exam', 'problem', 'procedure', 'anaesthesia', 'treatment', 'lab_result', 'companion', 'death'] as const
+export type EntryKind = typeof ENTRY_KINDS[number]
+export const TIMELINE_KINDS = [...ENTRY_KINDS, 'photo', 'move', 'owner_change'] as const
+export type TimelineKind = typeof TIMELINE_KINDS[number]
+
+const limitedText = (max: number) => z.string('Enter text').trim().max(max, `At most ${max} characters`)
+const requiredText = (max: number, message: string) => limitedText(max).min(1, message)
+const calendarDay = z.iso.date('Use the form YYYY-MM-DD')
+const amount = (what: string, max: number, unit: string) => z.number(`Enter the ${what} as a number`)
+  .positive(`The ${what} must be more than 0`)
+  .max(max, `More than ${max} ${unit} is not a plausible ${what}`)
+const minutes = (what: string, max: number) => z.number(`Enter the ${what} in minutes`)
+  .min(0, `The ${what} cannot be negative`).max(max, `More than ${max} minutes is not a plausible ${what}`)
+
+// Entered text as typed ("2 lb 3 oz"), kept for the record; computation reads the metric fields only.
+const enteredAs = z.strictObject({
+  weight: limitedText(40).optional(),
+  length: limitedText(40).optional(),
+  waterTemperature: limitedText(40).optional(),
+}).optional()
+
+// ---- measurement ------------------------------------------------------------------------------
+
+export const LENGTH_TYPES = ['total', 'fork', 'standard'] as const
+export type LengthType = typeof LENGTH_TYPES[number]
+
+export const measurementData = z.strictObject({
+  // The largest koi on record weigh about 40 kg and measure about 1.2 m.
+  weightG: amount('weight', 60_000, 'g').optional(),
+  lengthCm: amount('length', 150, 'cm').optional(),
+  lengthType: z.enum(LENGTH_TYPES, 'Choose total, fork or standard length').default('total'),
+  entered: enteredAs,
+  note: limitedText(1000).optional(),
+}).refine(d => d.weightG !== undefined || d.lengthCm !== undefined, { message: 'Enter a weight, a length or both', path: ['weightG'] })
+
+// ---- observation ------------------------------------------------------------------------------
+
+export const OBSERVATION_SIGNS = {
+  behaviour: ['eating_well', 'poor_appetite', 'not_eating', 'lethargic', 'flashing', 'rubbing', 'clamped_fins', 'gasping', 'hiding', 'sitting_on_bottom', 'floating', 'erratic_swimming'],
+  appearance: ['white_spots', 'red_streaks', 'ulcer', 'fin_damage', 'cloudy_eye', 'raised_scales', 'pale_gills', 'excess_mucus', 'swollen_belly', 'lump', 'thin'],
+} as const
+export const ALL_OBSERVATION_SIGNS = [...OBSERVATION_SIGNS.behaviour, ...OBSERVATION_SIGNS.appearance] as const
+export type ObservationSign = typeof ALL_OBSERVATION_SIGNS[number]
+
+export const observationData = z.strictObject({
+  signs: z.array(z.enum(ALL_OBSERVATION_SIGNS, 'Choose from the listed signs'))
+    .max(ALL_OBSERVATION_SIGNS.length)
+    .refine(signs => new Set(signs).size === signs.length, 'Each sign once')
+    .default([]),
+  text: limitedText(4000).default(''),
+  // A photo of this fish from its photo list; the route checks that it belongs to the fish.
+  photoId: z.uuid('Choose one of this fish’s photos').optional(),
+}).refine(d => d.signs.length > 0 || d.text !== '', { message: 'Tick what you saw or describe it', path: ['text'] })
+
+// ---- exam -------------------------------------------------------------------------------------
+
+export const BODY_SYSTEMS = ['general', 'skin', 'fins', 'gills', 'eyes', 'mouth', 'buoyancy', 'coelom', 'vent', 'musculoskeletal'] as const
+export type BodySystem = typeof BODY_SYSTEMS[number]
+export const FINDING_STATES = ['normal', 'abnormal', 'not_examined'] as const
+
+const examFinding = z.strictObject({
+  system: z.enum(BODY_SYSTEMS, 'Choose a body system'),
+  state: z.enum(FINDING_STATES, 'Choose normal, abnormal or not examined'),
+  note: limitedText(1000).default(''),
+}).refine(f => f.state !== 'abnormal' || f.note !== '', { message: 'Describe what is abnormal', path: ['note'] })
+
+export const examData = z.strictObject({
+  reason: limitedText(200).default(''),
+  history: limitedText(4000).default(''),
+  findings: z.array(examFinding).max(BODY_SYSTEMS.length)
+    .refine(list => new Set(list.map(f => f.system)).size === list.length, 'Each body system once')
+    .default([]),
+  assessment: limitedText(4000).default(''),
+  plan: limitedText(4000).default(''),
+}).refine(d => d.findings.length > 0 || d.assessment !== '', { message: 'Record at least one finding or an assessment', path: ['assessment'] })
+
+// ---- problem ----------------------------------------------------------------------------------
+
+export const PROBLEM_STATUSES = ['suspected', 'active', 'resolved'] as const
+export type ProblemStatus = typeof PROBLEM_STATUSES[number]
+
+export const problemData = z.strictObject({
+  name: requiredText(160, 'Name the problem'),
+  onset: calendarDay,
+  status: z.enum(PROBLEM_STATUSES, 'Choose suspected, active or resolved'),
+  resolvedOn: calendarDay.optional(),
+  notes: limitedText(4000).default(''),
+}).superRefine((d, ctx) => {
+  if (d.status === 'resolved' && !d.resolvedOn) ctx.addIssue({ code: 'custom', path: ['resolvedOn'], message: 'Give the date it resolved' })
+  if (d.status !== 'resolved' && d.resolvedOn) ctx.addIssue({ code: 'custom', path: ['resolvedOn'], message: 'Only a resolved problem has a resolution date' })
+  if (d.resolvedOn && d.resolvedOn < d.onset) ctx.addIssue({ code: 'custom', path: ['resolvedOn'], message: 'Cannot be before the onset' })
+})
+
+// ---- procedure and anaesthesia ----------------------------------------------------------------
+
+export const COMMON_PROCEDURES = ['enucleation', 'mass removal', 'biopsy', 'microchip implant', 'fin trim', 'wound debridement', 'wen trim', 'injection site check'] as const
+export const BODY_SIDES = ['left', 'right', 'both', 'not_applicable'] as const
+export type BodySide = typeof BODY_SIDES[number]
+
+// Shared with the SQL that finds eye removals, so the record and the profile header agree.
+export const ENUCLEATION_PATTERN = 'enucleat|eye removal|eye removed'
+export function isEnucleation(procedureName: string): boolean {
+  return new RegExp(ENUCLEATION_PATTERN, 'i').test(procedureName)
+}
+
+export const procedureData = z.strictObject({
+  name: requiredText(160, 'Name the procedure'),
+  bodySite: limitedText(160).default(''),
+  side: z.enum(BODY_SIDES, 'Choose left, right, both or not applicable'),
+  surgeon: requiredText(120, 'Who performed it?'),
+  notes: limitedText(4000).default(''),
+  outcome: limitedText(2000).default(''),
+  recheckOn: calendarDay.optional(),
+  anaesthesiaEntryId: z.uuid('Not an anaesthesia record of this fish').optional(),
+}).superRefine((d, ctx) => {
+  if (isEnucleation(d.name) && d.side === 'not_applicable') ctx.addIssue({ code: 'custom', path: ['side'], message: 'Say which eye: left, right or both' })
+})
+
+export const COMMON_ANAESTHETICS = ['MS-222 (tricaine methanesulfonate)', 'Eugenol (clove oil)', 'Isoeugenol', 'Benzocaine'] as const
+
+export const anaesthesiaData = z.strictObject({
+  agent: requiredText(120, 'Name the agent'),
+  concentrationMgL: amount('bath concentration', 2000, 'mg/L'),
+  buffer: limitedText(200).default(''),
+  waterTemperatureC: z.number('Enter the water temperature as a number').min(0, 'Below 0 °C the water is ice').max(40, 'Above 40 °C is not pond water').optional(),
+  inductionMinutes: minutes('induction time', 120).optional(),
+  recoveryMinutes: minutes('recovery time', 720).optional(),
+  monitoring: limitedText(4000).default(''),
+  entered: enteredAs,
+})
+
+// ---- treatment --------------------------------------------------------------------------------
+
+export const TREATMENT_ROUTES = ['bath', 'dip', 'injection', 'in_feed', 'topical'] as const
+export type TreatmentRoute = typeof TREATMENT_ROUTES[number]
+export const DOSE_UNITS = ['mg/L', 'g/L', 'mL/L', '%', 'mg/kg', 'mL/kg', 'mg/kg of feed', 'g/kg of feed', 'dose'] as const
+
+export const treatmentData = z.strictObject({
+  drug: requiredText(160, 'Name the drug or product'),
+  route: z.enum(TREATMENT_ROUTES, 'Choose bath, dip, injection, in feed or topical'),
+  injectionSite: limitedText(120).optional(),
+  dose: amount('dose', 100_000, 'units'),
+  doseUnit: z.enum(DOSE_UNITS, 'Choose the dose unit'),
+  startOn: calendarDay,
+  durationDays: z.number('Enter the number of days').int('Whole days').min(1, 'At least 1 day').max(365, 'At most 365 days').optional(),
+  endOn: calendarDay.optional(),
+  givenBy: limitedText(120).default(''),
+  // Set when a keeper records what they gave on a vet's instruction; names that vet.
+  givenOnInstructionOf: limitedText(120).optional(),
+  notes: limitedText(4000).default(''),
+}).superRefine((d, ctx) => {
+  if (d.route === 'injection' && !d.injectionSite) ctx.addIssue({ code: 'custom', path: ['injectionSite'], message: 'Give the injection site' })
+  if (d.durationDays !== undefined && d.endOn) ctx.addIssue({ code: 'custom', path: ['endOn'], message: 'Give a duration or an end date, not both' })
+  if (d.endOn && d.endOn < d.startOn) ctx.addIssue({ code: 'custom', path: ['endOn'], message: 'Cannot end before it starts' })
+})
+
+// ---- lab result -------------------------------------------------------------------------------
+
+export const LAB_PANELS = ['haematology', 'biochemistry', 'skin_scrape', 'gill_biopsy', 'culture', 'other'] as const
+export type LabPanel = typeof LAB_PANELS[number]
+
+const analyte = z.strictObject({
+  name: requiredText(80, 'Name the analyte'),
+  value: z.number('Enter the value as a number').finite(),
+  unit: limitedText(30).default(''),
+  low: z.number('Enter the lower limit as a number').finite().optional(),
+  high: z.number('Enter the upper limit as a number').finite().optional(),
+}).refine(a => a.low === undefined || a.high === undefined || a.low <= a.high, { message: 'The lower limit is above the upper one', path: ['high'] })
+
+const organism = z.strictObject({
+  name: requiredText(120, 'Name the organism'),
+  count: limitedText(80).default(''),
+})
+
+export const labResultData = z.strictObject({
+  panel: z.enum(LAB_PANELS, 'Choose the panel'),
+  panelName: limitedText(120).optional(),
+  laboratory: limitedText(160).default(''),
+  sample: limitedText(160).default(''),
+  // Where the reference intervals came from: they depend on the laboratory, season and method.
+  intervalSource: limitedText(200).default(''),
+  analytes: z.array(analyte).max(80).default([]),
+  organisms: z.array(organism).max(40).default([]),
+  findings: limitedText(4000).default(''),
+}).superRefine((d, ctx) => {
+  if (d.panel === 'other' && !d.panelName) ctx.addIssue({ code: 'custom', path: ['panelName'], message: 'Name the test' })
+  if (!d.analytes.length && !d.organisms.length && !d.findings) ctx.addIssue({ code: 'custom', path: ['findings'], message: 'Record values, organisms seen or findings' })
+})
+
+// ---- companion and death ----------------------------------------------------------------------
+
+export const COMPANION_RELATIONS = ['guides', 'always_together', 'aggressive_toward', 'avoids', 'other'] as const
+export type CompanionRelation = typeof COMPANION_RELATIONS[number]
+
+export const companionData = z.strictObject({
+  relatedFishId: z.uuid('Choose the other fish'),
+  relation: z.enum(COMPANION_RELATIONS, 'Choose how they relate'),
+  relationText: limitedText(80).optional(),
+  note: limitedText(1000).default(''),
+}).refine(d => d.relation !== 'other' || Boolean(d.relationText), { message: 'Describe the relation', path: ['relationText'] })
+
+export const deathData = z.strictObject({
+  cause: limitedText(300).default(''),
+  euthanased: z.boolean('Yes or no').default(false),
+  necropsy: limitedText(4000).default(''),
+})
+
+// ---- the union --------------------------------------------------------------------------------
+
+export const ENTRY_DATA_SCHEMAS = {
+  measurement: measurementData,
+  observation: observationData,
+  exam: examData,
+  problem: problemData,
+  procedure: procedureData,
+  anaesthesia: anaesthesiaData,
+  treatment: treatmentData,
+  lab_result: labResultData,
+  companion: companionData,
+  death: deathData,
+} as const
+
+export type EntryData<K extends EntryKind = EntryKind> = z.output<typeof ENTRY_DATA_SCHEMAS[K]>
+
+// Clock skew between a phone and the server is allowed for; a date-only value means midday UTC,
+// which stays the same calendar day everywhere from UTC−11 to UTC+12.
+const FUTURE_SLACK_MS = 10 * 60_000
+export const occurredAtSchema = z.string('Give the date')
+  .trim()
+  .refine(value => /^\d{4}-\d{2}-\d{2}$/.test(value) ? z.iso.date().safeParse(value).success : z.iso.datetime({ offset: true }).safeParse(value).success,
+    'Use a date (YYYY-MM-DD) or a date and time')
+  .transform(value => (value.length === 10 ? `${value}T12:00:00.000Z` : new Date(value).toISOString()))
+  .refine(value => value >= '1900-01-01', 'Too early')
+  .refine(value => new Date(value).getTime() <= Date.now() + (value.endsWith('T12:00:00.000Z') ? 14 * 3_600_000 : FUTURE_SLACK_MS), 'Cannot be in the future')
+
+// A client-chosen id makes a retried send after a lost answer find the entry it already wrote.
+const clientEntryId = z.uuid('Not a valid id').optional()
+
+const entryOf = <K extends EntryKind, S extends z.ZodType>(kind: K, data: S) => z.strictObject({
+  id: clientEntryId,
+  kind: z.literal(kind),
+  occurredAt: occurredAtSchema,
+  data,
+})
+
+export const entryCreateSchema = z.discriminatedUnion('kind', [
+  entryOf('measurement', measurementData),
+  entryOf('observation', observationData),
+  entryOf('exam', examData),
+  entryOf('problem', problemData),
+  // A procedure may bring its anaesthesia record along: both are written together or not at all.
+  entryOf('procedure', procedureData).extend({ anaesthesia: anaesthesiaData.optional() }),
+  entryOf('anaesthesia', anaesthesiaData),
+  entryOf('treatment', treatmentData),
+  entryOf('lab_result', labResultData),
+  entryOf('companion', companionData),
+  entryOf('death', deathData),
+], { error: 'Choose what kind of entry this is' })
+
+export type EntryCreateInput = z.input<typeof entryCreateSchema>
+export type EntryCreate = z.output<typeof entryCreateSchema>
+
+const reason = requiredText(500, 'Say why').min(3, 'Say why in a few words')
+
+/** The route reads the envelope first; the data is checked against the entry's own kind afterwards. */
+export const entryAmendEnvelope = z.strictObject({
+  revision: z.number('The revision you amended is required').int().min(1),
+  occurredAt: occurredAtSchema.optional(),
+  data: z.record(z.string(), z.unknown(), 'Give the amended fields'),
+  reason,
+})
+
+export function entryAmendSchemaFor(kind: EntryKind) {
+  return entryAmendEnvelope.extend({ data: ENTRY_DATA_SCHEMAS[kind] })
+}
+
+export const enteredInErrorSchema = z.strictObject({ reason })
+
+export const timelineQuerySchema = z.strictObject({
+  kind: z.string().trim().max(300).optional()
+    .transform(v => (v ? v.split(',').map(s => s.trim()).filter(Boolean) : []))
+    .pipe(z.array(z.enum(TIMELINE_KINDS, 'Unknown kind')).max(TIMELINE_KINDS.length)),
+  before: z.string().trim().max(200).optional(),
+  limit: z.coerce.number('Enter a number').int('A whole number').min(1, 'At least 1').max(200, 'At most 200').default(50),
+})
+
+export const entryIdParams = z.object({ entryId: z.uuid('Not a valid id') })
