@@ -42,6 +42,8 @@ export default defineNuxtConfig({
   compatibilityDate: '2026-01-01',
   nitro: {
     experimental: { tasks: true },
+    // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
+    scheduledTasks: { '0 * * * *': ['photos:purge'] },
   },
   typescript: { strict: true },
   telemetry: false,

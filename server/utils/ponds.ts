@@ -1,7 +1,8 @@
 import { and, count, eq, sql } from 'drizzle-orm'
 import type { PondDetail, PondRole } from '#shared/types'
 
-const aliveFishCount = sql<number>`(select count(*)::int from ${schema.fish} where ${schema.fish.pondId} = ${schema.ponds.id} and ${schema.fish.status} = 'alive')`
+// Spelled out: Drizzle leaves columns unqualified in single-table selects, which would bind ponds.id to fish.id here.
+const aliveFishCount = sql<number>`(select count(*)::int from fish where fish.pond_id = ponds.id and fish.status = 'alive')`
 
 export async function listPondsOf(userId: string) {
   return useDb().select({

@@ -42,7 +42,7 @@ describe('the register in Chromium', () => {
     await page.getByTestId('fish-search').fill(chip.slice(0, 9))
     await expect.poll(() => page.locator('[data-testid^="fish-card-"]').count()).toBe(1)
     await page.getByTestId(`fish-card-${name}`).click()
-    await expect.poll(() => page.getByTestId('fish-microchip').textContent()).toContain(chip)
+    await expect.poll(() => page.getByTestId('fish-microchip').textContent()).toContain(`${chip.slice(0, 3)} ${chip.slice(3)}`)
     await screenshots(page, 'fish-profile')
     await page.goBack()
     await page.getByTestId('fish-search').fill('')

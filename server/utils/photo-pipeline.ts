@@ -1,0 +1,246 @@
+import { randomBytes } from 'node:crypto'
+import { copyFile, link, mkdir, rename, rm, stat } from 'node:fs/promises'
+import { dirname } from 'node:path'
+import { and, desc, eq, isNull, sql } from 'drizzle-orm'
+import pLimit from 'p-limit'
+import { PHOTO_PROCESSING_CONCURRENCY } from '#shared/utils/photo-limits'
+import type { PhotoRow } from './photo-access'
+import { makeDerived, readPhotoHeader } from './photo-derive'
+import { PhotoRejection, sha256OfFile, sniffPhotoType } from './photo-files'
+import { derivedDir, originalPath, uploadPath } from './photo-storage'
+
+// Whole photo jobs (sniff, hash, decode, encode) run at most this many at once, in this process.
+const photoJobs = pLimit(PHOTO_PROCESSING_CONCURRENCY)
+
+export const BUSY = 'busy' as const
+
+/**
+ * One job per upload at a time, across processes: a PostgreSQL advisory lock held on its own
+ * connection. A process that dies mid-job loses the connection and with it the lock, so the next
+ * start can take the job over. Returns BUSY when someone else holds it.
+ */
+async function withUploadLock<T>(uploadId: string, work: () => Promise<T>): Promise<T | typeof BUSY> {
+  const client = await usePool().connect()
+  let healthy = true
+  try {
+    const { rows } = await client.query<{ locked: boolean }>('select pg_try_advisory_lock(hashtextextended($1, 0)) as locked', [`photo-upload:${uploadId}`])
+    if (!rows[0]?.locked) return BUSY
+    try {
+      return await work()
+    }
+    finally {
+      await client.query('select pg_advisory_unlock(hashtextextended($1, 0))', [`photo-upload:${uploadId}`]).catch(() => (healthy = false))
+    }
+  }
+  finally {
+    // A connection that could not unlock is closed, which unlocks it.
+    client.release(!healthy)
+  }
+}
+
+export function runPhotoJob<T>(uploadId: string, work: () => Promise<T>) {
+  return photoJobs(() => withUploadLock(uploadId, work))
+}
+
+async function exists(path: string) {
+  return stat(path).then(() => true, () => false)
+}
+
+/** The bytes tus stored, and its .json beside them. */
+export async function discardUpload(uploadId: string) {
+  await rm(uploadPath(uploadId), { force: true })
+  await rm(`${uploadPath(uploadId)}.json`, { force: true })
+}
+
+/**
+ * The original is a second name for the upload's bytes (no copy of 40 MB): tus keeps answering
+ * HEAD with "complete" until the upload expires, so a client whose last answer was lost does not
+ * send the photo again.
+ */
+async function keepOriginal(uploadId: string, photoId: string) {
+  const target = originalPath(photoId)
+  await mkdir(dirname(target), { recursive: true })
+  try {
+    await link(uploadPath(uploadId), target)
+  }
+  catch (error) {
+    const code = (error as NodeJS.ErrnoException).code
+    if (code === 'EEXIST') return
+    if (code !== 'EXDEV' && code !== 'EPERM' && code !== 'ENOTSUP') throw error
+    await copyFile(uploadPath(uploadId), `${target}.partial`)
+    await rename(`${target}.partial`, target)
+  }
+}
+
+export async function deletePhotoFiles(photo: Pick<PhotoRow, 'id' | 'uploadId'>) {
+  await rm(derivedDir(photo.id), { recursive: true, force: true })
+  await rm(originalPath(photo.id), { force: true })
+  await discardUpload(photo.uploadId)
+}
+
+/** A photo whose file turned out unusable leaves nothing behind: no row, no original, no derived copies. */
+async function dropPhoto(photo: PhotoRow) {
+  await useDb().delete(schema.photos).where(eq(schema.photos.id, photo.id))
+  await deletePhotoFiles(photo)
+}
+
+function describeFailure(error: unknown) {
+  const code = (error as NodeJS.ErrnoException)?.code
+  const detail = code ?? (error instanceof Error ? error.message.split('\n')[0]!.slice(0, 160) : 'unknown error')
+  return `The server could not make the resized copies (${detail}). The photo itself is stored: press Retry.`
+}
+
+/** A fish with no profile picture gets its first ready photo. */
+async function offerAsProfile(photo: PhotoRow) {
+  await useDb().update(schema.fish).set({ profilePhotoId: photo.id })
+    .where(and(eq(schema.fish.id, photo.fishId), isNull(schema.fish.profilePhotoId)))
+}
+
+/** Makes the derived copies of a stored photo. The caller holds the upload's lock. */
+async function processPhoto(photo: PhotoRow): Promise<PhotoRow> {
+  if (!(await exists(originalPath(photo.id)))) {
+    // The process stopped between the row and the link: the upload's bytes are still there.
+    if (await exists(uploadPath(photo.uploadId))) await keepOriginal(photo.uploadId, photo.id)
+    else {
+      await dropPhoto(photo)
+      throw new PhotoRejection(410, 'The uploaded file was lost before it could be processed. Upload the photo again.')
+    }
+  }
+  const finalDir = derivedDir(photo.id)
+  const workDir = `${finalDir}.tmp-${randomBytes(6).toString('hex')}`
+  try {
+    const variants = await makeDerived(originalPath(photo.id), workDir)
+    // Appears whole or not at all: readers never see half a set of sizes.
+    await rm(finalDir, { recursive: true, force: true })
+    await rename(workDir, finalDir)
+    const [ready] = await useDb().update(schema.photos)
+      .set({ state: 'ready', failureReason: null, variants, updatedAt: new Date() })
+      .where(eq(schema.photos.id, photo.id)).returning()
+    if (ready && !ready.removedAt) await offerAsProfile(ready)
+    return ready ?? photo
+  }
+  catch (error) {
+    await rm(workDir, { recursive: true, force: true })
+    if (error instanceof PhotoRejection) {
+      await dropPhoto(photo)
+      throw error
+    }
+    console.error(`[photos] processing ${photo.id} failed:`, error)
+    const [failed] = await useDb().update(schema.photos)
+      .set({ state: 'failed', failureReason: describeFailure(error), updatedAt: new Date() })
+      .where(eq(schema.photos.id, photo.id)).returning()
+    return failed ?? photo
+  }
+}
+
+export interface FinishedUpload {
+  photo: PhotoRow
+  /** The same bytes were already a photo of this fish: that one is answered, nothing new is kept. */
+  duplicate: boolean
+}
+
+async function photoByUpload(uploadId: string) {
+  const [row] = await useDb().select().from(schema.photos).where(eq(schema.photos.uploadId, uploadId)).limit(1)
+  return row
+}
+
+async function livePhotoWithBytes(fishId: string, sha256: string) {
+  const [row] = await useDb().select().from(schema.photos)
+    .where(and(eq(schema.photos.fishId, fishId), eq(schema.photos.sha256, sha256), isNull(schema.photos.removedAt)))
+    .limit(1)
+  return row
+}
+
+function isUniqueViolation(error: unknown) {
+  const cause = (error as { cause?: unknown })?.cause ?? error
+  return (cause as { code?: string })?.code === '23505'
+}
+
+/**
+ * From a finished tus upload to a photo: checks that need no decoding first (type from the bytes,
+ * size from the header), then the row, then the derived copies. Safe to run again for the same
+ * upload (the finish hook, a restart's recovery, a retry): the upload id finds the same row.
+ */
+export function finishUpload(uploadId: string, upload: { size: number, metadata: Record<string, string | null | undefined> }) {
+  return runPhotoJob(uploadId, async (): Promise<FinishedUpload> => {
+    const existing = await photoByUpload(uploadId)
+    if (existing) return { photo: existing.state === 'pending' ? await processPhoto(existing) : existing, duplicate: false }
+
+    const bytesPath = uploadPath(uploadId)
+    let row: PhotoRow | undefined
+    try {
+      const mime = await sniffPhotoType(bytesPath, upload.size)
+      const header = await readPhotoHeader(bytesPath)
+      const sha256 = await sha256OfFile(bytesPath)
+      const fishId = String(upload.metadata.fishId)
+      const duplicate = await livePhotoWithBytes(fishId, sha256)
+      if (duplicate) {
+        await discardUpload(uploadId)
+        return { photo: duplicate, duplicate: true }
+      }
+      try {
+        [row] = await useDb().insert(schema.photos).values({
+          fishId,
+          uploaderId: String(upload.metadata.uploaderId),
+          uploadId,
+          originalName: String(upload.metadata.filename ?? '').slice(0, 255),
+          view: (upload.metadata.view ?? 'other') as PhotoRow['view'],
+          caption: String(upload.metadata.caption ?? '').slice(0, 300),
+          takenAt: header.takenAt,
+          state: 'pending',
+          mime,
+          width: header.uprightWidth,
+          height: header.uprightHeight,
+          bytes: upload.size,
+          sha256,
+        }).returning()
+      }
+      catch (error) {
+        // Another upload of the same bytes to this fish won the race.
+        if (!isUniqueViolation(error)) throw error
+        const winner = await livePhotoWithBytes(fishId, sha256)
+        if (!winner) throw error
+        await discardUpload(uploadId)
+        return { photo: winner, duplicate: true }
+      }
+      await keepOriginal(uploadId, row!.id)
+      return { photo: await processPhoto(row!), duplicate: false }
+    }
+    catch (error) {
+      if (error instanceof PhotoRejection) {
+        if (!row) await discardUpload(uploadId)
+      }
+      throw error
+    }
+  })
+}
+
+/** Runs processing again for a failed (or interrupted) photo; a ready one is left as it is. */
+export function retryPhoto(photo: PhotoRow) {
+  return runPhotoJob(photo.uploadId, async () => {
+    const [current] = await useDb().select().from(schema.photos).where(eq(schema.photos.id, photo.id)).limit(1)
+    if (!current) throw new PhotoRejection(404, 'Photo not found')
+    if (current.state === 'ready') return current
+    const [pending] = await useDb().update(schema.photos).set({ state: 'pending', failureReason: null, updatedAt: new Date() })
+      .where(eq(schema.photos.id, photo.id)).returning()
+    return processPhoto(pending ?? current)
+  })
+}
+
+/** After the profile picture is removed, the newest ready photo from above (else any view) takes its place. */
+export async function replaceProfilePhoto(fishId: string, removedPhotoId: string) {
+  const [next] = await useDb().select({ id: schema.photos.id }).from(schema.photos)
+    .where(and(eq(schema.photos.fishId, fishId), eq(schema.photos.state, 'ready'), isNull(schema.photos.removedAt)))
+    .orderBy(sql`(${schema.photos.view} = 'top') desc`, desc(sql`coalesce(${schema.photos.takenAt}, ${schema.photos.createdAt})`))
+    .limit(1)
+  await useDb().update(schema.fish).set({ profilePhotoId: next?.id ?? null })
+    .where(and(eq(schema.fish.id, fishId), eq(schema.fish.profilePhotoId, removedPhotoId)))
+}
+
+/** Finishes a photo whose processing was cut off (the server stopped); others' jobs are left alone. */
+export function resumePendingPhoto(uploadId: string) {
+  return runPhotoJob(uploadId, async () => {
+    const row = await photoByUpload(uploadId)
+    return row?.state === 'pending' ? processPhoto(row) : row
+  })
+}
