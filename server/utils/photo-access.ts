@@ -28,13 +28,14 @@ export interface PhotoAccess {
 /** A photo exists for the caller only through a membership of its fish's pond: anyone else gets 404. */
 export async function requirePhotoAccess(event: H3Event, photoId: string): Promise<PhotoAccess> {
   const user = requireUser(event)
-  const [row] = await useDb().select({ photo: schema.photos, fish: schema.fish, role: schema.memberships.role })
+  const [row] = await useDb().select({ photo: schema.photos, fish: schema.fish, role: schema.memberships.role, readOnly: schema.memberships.readOnly })
     .from(schema.photos)
     .innerJoin(schema.fish, eq(schema.fish.id, schema.photos.fishId))
     .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
     .where(eq(schema.photos.id, photoId))
     .limit(1)
   if (!row) throw createError({ statusCode: 404, statusMessage: 'Photo not found' })
+  refuseReadOnlyWrite(event, row.readOnly)
   return { user, role: row.role as PondRole, photo: row.photo, fish: row.fish }
 }
 
@@ -62,4 +63,16 @@ export function toPhotoItem(photo: PhotoRow, uploaderName: string, context: { us
     removedAt: photo.removedAt?.toISOString() ?? null,
     purgeAt: photo.removedAt ? purgeDate(photo.removedAt).toISOString() : null,
   }
+}
+
+/** The answer of a photo route: the row as the caller sees it, with the fish's current profile choice. */
+export async function photoItemFor(photoId: string, access: Pick<PhotoAccess, 'user' | 'role'>): Promise<PhotoItem> {
+  const [row] = await useDb().select({ photo: schema.photos, uploaderName: schema.users.name, profilePhotoId: schema.fish.profilePhotoId })
+    .from(schema.photos)
+    .innerJoin(schema.users, eq(schema.users.id, schema.photos.uploaderId))
+    .innerJoin(schema.fish, eq(schema.fish.id, schema.photos.fishId))
+    .where(eq(schema.photos.id, photoId))
+    .limit(1)
+  if (!row) throw createError({ statusCode: 404, statusMessage: 'Photo not found' })
+  return toPhotoItem(row.photo, row.uploaderName, { ...access, profilePhotoId: row.profilePhotoId })
 }

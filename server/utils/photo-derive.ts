@@ -1,4 +1,4 @@
-import { mkdir, stat } from 'node:fs/promises'
+import { mkdir } from 'node:fs/promises'
 import { join } from 'node:path'
 import exifr from 'exifr'
 import sharp from 'sharp'
@@ -78,33 +78,29 @@ function decodeRejection(error: unknown): PhotoRejection | null {
  */
 export async function makeDerived(originalPath: string, outDir: string): Promise<PhotoVariant[]> {
   let decoded: { data: Buffer, info: sharp.OutputInfo }
-    try {
-      decoded = await sharp(originalPath, { limitInputPixels: MAX_INPUT_PIXELS, failOn: 'error' })
-        .rotate()
-        .resize(DERIVED_SIZES.at(-1), DERIVED_SIZES.at(-1), { fit: 'inside', withoutEnlargement: true })
-        .toColourspace('srgb')
-        .raw({ depth: 'uchar' })
-        .toBuffer({ resolveWithObject: true })
-    }
-    catch (error) {
-      const rejection = decodeRejection(error)
-      throw rejection ?? error
-    }
-    const { data, info } = decoded
-    await mkdir(outDir, { recursive: true })
-    const variants: PhotoVariant[] = []
-    for (const longSide of [...DERIVED_SIZES].reverse()) {
-      const resized = sharp(data, { raw: { width: info.width, height: info.height, channels: info.channels } })
-        .resize(longSide, longSide, { fit: 'inside', withoutEnlargement: true })
+  try {
+    decoded = await sharp(originalPath, { limitInputPixels: MAX_INPUT_PIXELS, failOn: 'error' })
+      .rotate()
+      .resize(DERIVED_SIZES.at(-1), DERIVED_SIZES.at(-1), { fit: 'inside', withoutEnlargement: true })
+      .toColourspace('srgb')
+      .raw({ depth: 'uchar' })
+      .toBuffer({ resolveWithObject: true })
+  }
+  catch (error) {
+    const rejection = decodeRejection(error)
+    throw rejection ?? error
+  }
+  const { data, info } = decoded
+  await mkdir(outDir, { recursive: true })
+  const variants: PhotoVariant[] = []
+  for (const longSide of [...DERIVED_SIZES].reverse()) {
+    const resized = sharp(data, { raw: { width: info.width, height: info.height, channels: info.channels as 1 | 2 | 3 | 4 } })
+      .resize(longSide, longSide, { fit: 'inside', withoutEnlargement: true })
       // One output at a time: each holds a thread of the pool while it encodes.
-      const webp = await resized.clone().webp({ quality: 80, effort: 4 }).toFile(join(outDir, `${longSide}.webp`))
-      const jpeg = await resized.clone().flatten({ background: '#ffffff' }).jpeg({ quality: 82, progressive: true }).toFile(join(outDir, `${longSide}.jpg`))
-      variants.push({ longSide, width: webp.width, height: webp.height, format: 'webp', bytes: webp.size })
-      variants.push({ longSide, width: jpeg.width, height: jpeg.height, format: 'jpeg', bytes: jpeg.size })
-    }
-    return variants.sort((a, b) => a.longSide - b.longSide)
-}
-
-export async function fileSize(path: string) {
-  return (await stat(path)).size
+    const webp = await resized.clone().webp({ quality: 80, effort: 4 }).toFile(join(outDir, `${longSide}.webp`))
+    const jpeg = await resized.clone().flatten({ background: '#ffffff' }).jpeg({ quality: 82, progressive: true }).toFile(join(outDir, `${longSide}.jpg`))
+    variants.push({ longSide, width: webp.width, height: webp.height, format: 'webp', bytes: webp.size })
+    variants.push({ longSide, width: jpeg.width, height: jpeg.height, format: 'jpeg', bytes: jpeg.size })
+  }
+  return variants.sort((a, b) => a.longSide - b.longSide)
 }

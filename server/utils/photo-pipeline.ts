@@ -120,7 +120,8 @@ async function processPhoto(photo: PhotoRow): Promise<PhotoRow> {
     return ready ?? photo
   }
   catch (error) {
-    await rm(workDir, { recursive: true, force: true })
+    // Cleaning up must not hide why it failed (the folder may be the very thing that is broken).
+    await rm(workDir, { recursive: true, force: true }).catch(() => undefined)
     if (error instanceof PhotoRejection) {
       await dropPhoto(photo)
       throw error

@@ -1,5 +1,4 @@
 import { resolve, join } from 'node:path'
-import type { DerivedFormat, DerivedSize } from '#shared/utils/photo-limits'
 
 // Where photo bytes live. Nothing here is under public/: every byte leaves through an authorised route.
 export function storageRoot() {
@@ -26,10 +25,6 @@ export function originalPath(photoId: string) {
 
 export function derivedDir(photoId: string) {
   return join(derivedRoot(), photoId)
-}
-
-export function derivedFileName(size: DerivedSize, format: DerivedFormat) {
-  return `${size}.${format}`
 }
 
 export function uploadPath(uploadId: string) {

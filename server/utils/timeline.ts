@@ -70,13 +70,14 @@ export interface EntryAccess {
 /** An entry is reached through its fish: only members of the pond the fish lives in see it (404 otherwise). */
 export async function requireEntryAccess(event: H3Event, entryId: string): Promise<EntryAccess> {
   const user = requireUser(event)
-  const [row] = await useDb().select({ entry: schema.timelineEntries, fish: schema.fish, role: schema.memberships.role })
+  const [row] = await useDb().select({ entry: schema.timelineEntries, fish: schema.fish, role: schema.memberships.role, readOnly: schema.memberships.readOnly })
     .from(schema.timelineEntries)
     .innerJoin(schema.fish, eq(schema.fish.id, schema.timelineEntries.fishId))
     .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
     .where(eq(schema.timelineEntries.id, entryId))
     .limit(1)
   if (!row) throw createError({ statusCode: 404, statusMessage: 'Entry not found' })
+  refuseReadOnlyWrite(event, row.readOnly)
   return { user, role: row.role as PondRole, fish: row.fish, entry: row.entry }
 }
 

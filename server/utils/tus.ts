@@ -1,6 +1,6 @@
 import type { IncomingMessage } from 'node:http'
 import { FileStore } from '@tus/file-store'
-import { Server, type Upload } from '@tus/server'
+import { Server } from '@tus/server'
 import type { H3Event } from 'h3'
 import { joinURL } from 'ufo'
 import { MAX_UPLOAD_BYTES, UPLOAD_EXPIRY_HOURS } from '#shared/utils/photo-limits'
@@ -110,16 +110,15 @@ export function useTusServer(): Server {
   return tus
 }
 
-export function tusStore(): FileStore {
-  return useTusServer().datastore as FileStore
-}
-
-export async function readUpload(uploadId: string): Promise<Upload | null> {
-  return tusStore().getUpload(uploadId).catch(() => null)
-}
-
 /** Hands the request to tus, keeping the H3 event at hand for the hooks. */
 export async function handleTusRequest(event: H3Event) {
+  // tus 1.0.0, Core Protocol: an unsupported version "MUST" get 412 with Tus-Version (@tus/server answers 400).
+  const version = getRequestHeader(event, 'tus-resumable')
+  if (event.method !== 'OPTIONS' && version !== undefined && version !== '1.0.0') {
+    setResponseHeaders(event, { 'Tus-Resumable': '1.0.0', 'Tus-Version': '1.0.0' })
+    setResponseStatus(event, 412, 'Precondition Failed')
+    return 'Unsupported tus version: this server speaks 1.0.0\n'
+  }
   const server = useTusServer()
   eventsByRequest.set(event.node.req, event)
   await server.handle(event.node.req, event.node.res)

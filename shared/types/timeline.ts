@@ -58,6 +58,8 @@ export interface StandingFacts {
   treatments: { entryId: string, drug: string, route: string, dose: number, doseUnit: string, startOn: string, lastDay: string | null }[]
   latestWeight: { weightG: number, at: string, entryId: string } | null
   latestLength: { lengthCm: number, lengthType: string, at: string, entryId: string } | null
+  /** Fulton's K from the latest weighing that has both a weight and a length. */
+  latestCondition: { conditionK: number, lengthType: string, at: string, entryId: string } | null
   lastExam: { at: string, entryId: string, by: string, reason: string } | null
   companions: { entryId: string, fish: FishRef, words: string, relation: string }[]
   death: { at: string, cause: string, entryId: string } | null

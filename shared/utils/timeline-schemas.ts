@@ -9,8 +9,8 @@ export type EntryKind = typeof ENTRY_KINDS[number]
 export const TIMELINE_KINDS = [...ENTRY_KINDS, 'photo', 'move', 'owner_change'] as const
 export type TimelineKind = typeof TIMELINE_KINDS[number]
 
-const limitedText = (max: number) => z.string('Enter text').trim().max(max, `At most ${max} characters`)
-const requiredText = (max: number, message: string) => limitedText(max).min(1, message)
+const limitedText = (max: number, missing = 'Enter text') => z.string(missing).trim().max(max, `At most ${max} characters`)
+const requiredText = (max: number, missing: string) => limitedText(max, missing).min(1, missing)
 const calendarDay = z.iso.date('Use the form YYYY-MM-DD')
 const amount = (what: string, max: number, unit: string) => z.number(`Enter the ${what} as a number`)
   .positive(`The ${what} must be more than 0`)
@@ -266,7 +266,7 @@ export const entryCreateSchema = z.discriminatedUnion('kind', [
 export type EntryCreateInput = z.input<typeof entryCreateSchema>
 export type EntryCreate = z.output<typeof entryCreateSchema>
 
-const reason = requiredText(500, 'Say why').min(3, 'Say why in a few words')
+const reason = z.string('Say why').trim().min(3, 'Say why in a few words').max(500, 'At most 500 characters')
 
 /** The route reads the envelope first; the data is checked against the entry's own kind afterwards. */
 export const entryAmendEnvelope = z.strictObject({

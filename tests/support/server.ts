@@ -12,29 +12,33 @@ export interface RunningServer {
 }
 
 /** Starts the built production server (.output) on its own port against the test database. */
-export async function startServer(port: number, extraEnv: Record<string, string> = {}): Promise<RunningServer> {
+/** extraEnv values of null remove a variable the test server would otherwise set. */
+export async function startServer(port: number, extraEnv: Record<string, string | null> = {}): Promise<RunningServer> {
   const env = testEnv()
   mkdirSync(env.storageDir, { recursive: true })
   let output = ''
-  const child = spawn(process.execPath, [resolve(ROOT, '.output/server/index.mjs')], {
+  const baseEnv: Record<string, string | undefined> = {
+    ...process.env,
+    NODE_ENV: 'production',
+    HOST: '127.0.0.1',
+    NITRO_HOST: '127.0.0.1',
+    PORT: String(port),
+    NITRO_PORT: String(port),
+    NUXT_DATABASE_URL: env.databaseUrl,
+    NUXT_SESSION_PASSWORD: env.sessionPassword,
+    NUXT_SESSION_COOKIE_SECURE: 'false',
+    NUXT_APP_ORIGIN: `http://127.0.0.1:${port}`,
+    NUXT_SMTP_PORT: String(env.smtpPort),
+    NUXT_STORAGE_DIR: env.storageDir,
+    NUXT_TRUST_PROXY: 'true',
+    NUXT_SIGN_IN_IP_LIMIT: '30',
+  }
+  const childEnv = Object.fromEntries(Object.entries({ ...baseEnv, ...extraEnv }).filter(([, value]) => value !== null))
+  // FINTRAIL_SERVER_ENTRY points at a copy of a build, so a rebuild in the checkout cannot pull it away mid-run.
+  const entry = process.env.FINTRAIL_SERVER_ENTRY ?? resolve(ROOT, '.output/server/index.mjs')
+  const child = spawn(process.execPath, [entry], {
     cwd: ROOT,
-    env: {
-      ...process.env,
-      NODE_ENV: 'production',
-      HOST: '127.0.0.1',
-      NITRO_HOST: '127.0.0.1',
-      PORT: String(port),
-      NITRO_PORT: String(port),
-      NUXT_DATABASE_URL: env.databaseUrl,
-      NUXT_SESSION_PASSWORD: env.sessionPassword,
-      NUXT_SESSION_COOKIE_SECURE: 'false',
-      NUXT_APP_ORIGIN: `http://127.0.0.1:${port}`,
-      NUXT_SMTP_PORT: String(env.smtpPort),
-      NUXT_STORAGE_DIR: env.storageDir,
-      NUXT_TRUST_PROXY: 'true',
-      NUXT_SIGN_IN_IP_LIMIT: '30',
-      ...extraEnv,
-    },
+    env: childEnv,
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   child.stdout!.on('data', (d: Buffer) => (output += d.toString()))

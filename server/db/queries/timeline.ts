@@ -45,19 +45,21 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
         e.error_by_id, e.error_at, 'subject'::text as viewpoint, e.related_fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
       from timeline_entries e
       where e.fish_id = ${fishId} ${kindFilter} ${before(sql`e.occurred_at`, sql`e.id`)}
-      order by e.occurred_at desc, e.id desc limit ${n})`)
+      order by e.occurred_at desc nulls last, e.id desc nulls last limit ${n})`)
   }
   if (all || kinds.includes('companion')) {
-    branches.push(sql`(select e.id, e.kind::text, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
-        e.error_by_id, e.error_at, 'related'::text, e.fish_id, e.linked_entry_id, e.photo_id, e.created_at
+    branches.push(sql`(select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
+        e.error_by_id, e.error_at, 'related'::text as viewpoint, e.fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
       from timeline_entries e
       where e.related_fish_id = ${fishId} and e.kind = 'companion' and e.fish_id <> ${fishId} ${before(sql`e.occurred_at`, sql`e.id`)}
-      order by e.occurred_at desc, e.id desc limit ${n})`)
+      order by e.occurred_at desc nulls last, e.id desc nulls last limit ${n})`)
   }
   if (all || kinds.includes('photo')) {
     const at = sql`coalesce(p.taken_at, p.created_at)`
-    branches.push(sql`(select p.id, 'photo'::text, ${at}, p.uploader_id, jsonb_build_object('caption', p.caption, 'view', p.view), 1, false, null::text,
-        null::uuid, null::timestamptz, 'subject'::text, null::uuid, null::uuid, p.id, p.created_at
+    branches.push(sql`(select p.id, 'photo'::text as kind, ${at} as occurred_at, p.uploader_id as author_id,
+        jsonb_build_object('caption', p.caption, 'view', p.view) as data, 1 as revision, false as entered_in_error, null::text as error_reason,
+        null::uuid as error_by_id, null::timestamptz as error_at, 'subject'::text as viewpoint, null::uuid as other_fish_id,
+        null::uuid as linked_entry_id, p.id as photo_id, p.created_at
       from photos p
       where p.fish_id = ${fishId} and p.state = 'ready' and p.removed_at is null ${before(at, sql`p.id`)}
       order by ${at} desc, p.id desc limit ${n})`)
@@ -70,7 +72,7 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
     left join users author on author.id = page.author_id
     left join users marker on marker.id = page.error_by_id
     left join fish other on other.id = page.other_fish_id
-    order by page.occurred_at desc, page.id desc
+    order by page.occurred_at desc nulls last, page.id desc nulls last
     limit ${n}`
 }
 
@@ -80,6 +82,7 @@ export interface FactsRow extends Record<string, unknown> {
   treatments: { entryId: string, data: Record<string, unknown> }[]
   latest_weight: { entryId: string, at: string, weightG: number } | null
   latest_length: { entryId: string, at: string, lengthCm: number, lengthType: string } | null
+  latest_pair: { entryId: string, at: string, weightG: number, lengthCm: number, lengthType: string } | null
   last_exam: { entryId: string, at: string, by: string, reason: string } | null
   companions: { entryId: string, data: Record<string, unknown>, viewpoint: 'subject' | 'related', fishId: string, fishName: string }[]
   death: { entryId: string, at: string, cause: string } | null
@@ -102,19 +105,23 @@ export function standingFactsSql(fishId: string, today: string) {
     (select coalesce(jsonb_agg(jsonb_build_object('entryId', e.id, 'data', e.data) order by e.data->>'startOn' desc), '[]'::jsonb)
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'treatment' and ${valid} and e.data->>'startOn' <= ${today}
-        and coalesce(e.data->>'endOn', '9999-12-31') >= ${today}) as treatments,
+        and coalesce(e.data->>'endOn', to_char((e.data->>'startOn')::date + ((e.data->>'durationDays')::int - 1), ${UTC_DAY}), '9999-12-31') >= ${today}) as treatments,
     (select jsonb_build_object('entryId', e.id, 'at', e.occurred_at, 'weightG', e.data->'weightG')
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'measurement' and ${valid} and e.data ? 'weightG'
-      order by e.occurred_at desc, e.id desc limit 1) as latest_weight,
+      order by e.occurred_at desc nulls last, e.id desc nulls last limit 1) as latest_weight,
     (select jsonb_build_object('entryId', e.id, 'at', e.occurred_at, 'lengthCm', e.data->'lengthCm', 'lengthType', e.data->>'lengthType')
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'measurement' and ${valid} and e.data ? 'lengthCm'
-      order by e.occurred_at desc, e.id desc limit 1) as latest_length,
+      order by e.occurred_at desc nulls last, e.id desc nulls last limit 1) as latest_length,
+    (select jsonb_build_object('entryId', e.id, 'at', e.occurred_at, 'weightG', e.data->'weightG', 'lengthCm', e.data->'lengthCm', 'lengthType', e.data->>'lengthType')
+      from timeline_entries e
+      where e.fish_id = ${fishId} and e.kind = 'measurement' and ${valid} and e.data ? 'weightG' and e.data ? 'lengthCm'
+      order by e.occurred_at desc nulls last, e.id desc nulls last limit 1) as latest_pair,
     (select jsonb_build_object('entryId', e.id, 'at', e.occurred_at, 'by', u.name, 'reason', e.data->>'reason')
       from timeline_entries e join users u on u.id = e.author_id
       where e.fish_id = ${fishId} and e.kind = 'exam' and ${valid}
-      order by e.occurred_at desc, e.id desc limit 1) as last_exam,
+      order by e.occurred_at desc nulls last, e.id desc nulls last limit 1) as last_exam,
     (select coalesce(jsonb_agg(jsonb_build_object('entryId', e.id, 'data', e.data,
           'viewpoint', case when e.fish_id = ${fishId} then 'subject' else 'related' end, 'fishId', o.id, 'fishName', o.name)
         order by e.occurred_at desc), '[]'::jsonb)

@@ -1,4 +1,4 @@
-import { index, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, index, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { timestamps } from './columns'
 import { users } from './users'
 
@@ -17,6 +17,8 @@ export const memberships = pgTable('memberships', {
   pondId: uuid('pond_id').notNull().references(() => ponds.id, { onDelete: 'cascade' }),
   userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
   role: pondRole('role').notNull(),
+  // Kept on after a handover to see the history, but every write is refused (server/utils/access.ts).
+  readOnly: boolean('read_only').notNull().default(false),
   ...timestamps,
 }, t => [
   uniqueIndex('memberships_pond_user_unique').on(t.pondId, t.userId),

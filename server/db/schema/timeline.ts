@@ -32,7 +32,8 @@ export const timelineEntries = pgTable('timeline_entries', {
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 }, t => [
   index('timeline_fish_occurred_idx').on(t.fishId, t.occurredAt.desc(), t.id.desc()),
-  index('timeline_fish_kind_occurred_idx').on(t.fishId, t.kind, t.occurredAt.desc()),
+  // With the id as tie-breaker it serves both a kind-filtered page and "the latest entry of a kind" without sorting.
+  index('timeline_fish_kind_occurred_idx').on(t.fishId, t.kind, t.occurredAt.desc(), t.id.desc()),
   index('timeline_pond_idx').on(t.pondId),
   index('timeline_author_idx').on(t.authorId),
   index('timeline_related_fish_idx').on(t.relatedFishId),

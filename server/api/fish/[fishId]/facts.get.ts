@@ -1,4 +1,5 @@
 import { fishIdParams } from '#shared/utils/fish-schemas'
+import { fultonK } from '#shared/utils/condition'
 import type { StandingFacts } from '#shared/types/timeline'
 import { eyeState, isCurrentTreatment, relationWords, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
 import type { CompanionRelation } from '#shared/utils/timeline-schemas'
@@ -22,6 +23,10 @@ export default defineEventHandler(async (event): Promise<StandingFacts> => {
       .map(({ entryId, data }) => ({ entryId, drug: data.drug, route: data.route, dose: data.dose, doseUnit: data.doseUnit, startOn: data.startOn, lastDay: treatmentLastDay(data) })),
     latestWeight: f.latest_weight && { ...f.latest_weight, at: iso(f.latest_weight.at) },
     latestLength: f.latest_length && { ...f.latest_length, at: iso(f.latest_length.at) },
+    latestCondition: f.latest_pair && {
+      conditionK: fultonK(f.latest_pair.weightG, f.latest_pair.lengthCm) ?? 0, lengthType: f.latest_pair.lengthType,
+      at: iso(f.latest_pair.at), entryId: f.latest_pair.entryId,
+    },
     lastExam: f.last_exam && { ...f.last_exam, at: iso(f.last_exam.at), reason: f.last_exam.reason ?? '' },
     companions: f.companions.map(c => ({
       entryId: c.entryId,

@@ -14,6 +14,7 @@ export default defineEventHandler(async (event) => {
     if (!taken) throw createError({ statusCode: 410, statusMessage: 'This invitation is accepted' })
     await tx.insert(schema.memberships).values({ pondId: invitation.pondId, userId: user.id, role: invitation.role })
       .onConflictDoNothing()
+    await recordAudit(event, { pondId: invitation.pondId, action: 'invitation.accepted', details: { invitationId: invitation.id, email: invitation.email, role: invitation.role } }, tx)
   })
   return { pondId: invitation.pondId, role: invitation.role }
 })

@@ -8,7 +8,8 @@ export default defineEventHandler(async (event) => {
   await requirePondRole(event, pondId, ['owner'])
   const [withdrawn] = await useDb().update(schema.invitations).set({ withdrawnAt: new Date() })
     .where(and(eq(schema.invitations.id, invitationId), eq(schema.invitations.pondId, pondId), isNull(schema.invitations.acceptedAt), isNull(schema.invitations.withdrawnAt)))
-    .returning({ id: schema.invitations.id })
+    .returning({ id: schema.invitations.id, email: schema.invitations.email, role: schema.invitations.role })
   if (!withdrawn) throw createError({ statusCode: 404, statusMessage: 'Invitation not found' })
+  await recordAudit(event, { pondId, action: 'invitation.withdrawn', details: { invitationId, email: withdrawn.email, role: withdrawn.role } })
   return { ok: true }
 })

@@ -19,6 +19,7 @@ export default defineEventHandler(async (event) => {
     subject: `${user.name} invites you to the pond "${pond!.name}" on Fintrail`,
     text: `Hello,\n\n${user.name} invites you to join the pond "${pond!.name}" on Fintrail as ${input.role}.\n\nOpen this link to accept (valid for 14 days). If you have no account yet, you can create one there with this e-mail address:\n\n${link}\n`,
   })
+  await recordAudit(event, { pondId, action: 'invitation.sent', details: { invitationId: invitation!.id, email: input.email, role: input.role } })
   setResponseStatus(event, 201)
   return { id: invitation!.id, email: invitation!.email, role: invitation!.role, expiresAt: invitation!.expiresAt }
 })

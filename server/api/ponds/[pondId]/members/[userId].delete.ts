@@ -13,5 +13,6 @@ export default defineEventHandler(async (event) => {
     throw createError({ statusCode: 409, statusMessage: 'A pond needs an owner', message: 'The last owner cannot be removed.' })
   }
   await useDb().delete(schema.memberships).where(where)
+  await recordAudit(event, { pondId, action: 'member.removed', details: { userId, role: member.role } })
   return { ok: true }
 })

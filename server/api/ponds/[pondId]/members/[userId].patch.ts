@@ -15,5 +15,6 @@ export default defineEventHandler(async (event) => {
     throw createError({ statusCode: 409, statusMessage: 'A pond needs an owner', message: 'This is the last owner of the pond: make someone else owner first.' })
   }
   await useDb().update(schema.memberships).set({ role, updatedAt: new Date() }).where(where)
+  await recordAudit(event, { pondId, action: 'member.role_changed', details: { userId, from: member.role, to: role } })
   return { userId, role }
 })

@@ -6,7 +6,7 @@ export default defineEventHandler(async (event) => {
   await requirePondRole(event, pondId)
   return useDb().select({
     userId: schema.users.id, name: schema.users.name, email: schema.users.email,
-    role: schema.memberships.role, since: schema.memberships.createdAt,
+    role: schema.memberships.role, readOnly: schema.memberships.readOnly, since: schema.memberships.createdAt,
   }).from(schema.memberships)
     .innerJoin(schema.users, eq(schema.users.id, schema.memberships.userId))
     .where(eq(schema.memberships.pondId, pondId))

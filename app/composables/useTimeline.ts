@@ -1,0 +1,62 @@
+import type { FishGrowth, PondLengthWeight, StandingFacts, TimelineEntryView, TimelinePage } from '#shared/types/timeline'
+import type { TimelineKind } from '#shared/utils/timeline-schemas'
+
+export function useFishFacts(fishId: MaybeRefOrGetter<string>) {
+  return useFetch<StandingFacts>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
+}
+
+export function useFishGrowth(fishId: MaybeRefOrGetter<string>) {
+  return useFetch<FishGrowth>(() => `/api/fish/${toValue(fishId)}/growth`, { key: `fish-growth-${toValue(fishId)}` })
+}
+
+export function usePondLengthWeight(pondId: MaybeRefOrGetter<string>) {
+  return useFetch<PondLengthWeight>(() => `/api/ponds/${toValue(pondId)}/length-weight`, { key: `pond-length-weight-${toValue(pondId)}` })
+}
+
+/** Everything on the profile that an entry can change; refreshed together after a write. */
+export function fishRecordKeys(fishId: string) {
+  return [`fish-${fishId}`, `fish-facts-${fishId}`, `fish-growth-${fishId}`, `fish-timeline-${fishId}`, `fish-history-${fishId}`]
+}
+
+/**
+ * The first page comes through useFetch (rendered on the server, refreshed by key); older pages
+ * are appended as the person asks for them. Changing the kind filter starts again from the top.
+ */
+export function useTimeline(fishId: MaybeRefOrGetter<string>) {
+  const kinds = ref<TimelineKind[]>([])
+  const older = ref<TimelineEntryView[]>([])
+  const olderCursor = ref<string | null | undefined>(undefined)
+  const loadingMore = ref(false)
+  const moreError = ref('')
+  const first = useFetch<TimelinePage>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+    key: `fish-timeline-${toValue(fishId)}`,
+    query: computed(() => (kinds.value.length ? { kind: kinds.value.join(',') } : {})),
+  })
+  watch(() => first.data.value, () => {
+    older.value = []
+    olderCursor.value = undefined
+  })
+  const entries = computed(() => [...(first.data.value?.entries ?? []), ...older.value])
+  const nextCursor = computed(() => (olderCursor.value === undefined ? first.data.value?.nextCursor ?? null : olderCursor.value))
+
+  async function loadMore() {
+    if (!nextCursor.value || loadingMore.value) return
+    loadingMore.value = true
+    moreError.value = ''
+    try {
+      const query: Record<string, string> = { before: nextCursor.value }
+      if (kinds.value.length) query.kind = kinds.value.join(',')
+      const page = await apiFetch<TimelinePage>(`/api/fish/${toValue(fishId)}/timeline`, { query })
+      older.value = [...older.value, ...page.entries]
+      olderCursor.value = page.nextCursor
+    }
+    catch (error) {
+      moreError.value = describeFetchError(error).text
+    }
+    finally {
+      loadingMore.value = false
+    }
+  }
+
+  return { kinds, entries, nextCursor, loadMore, loadingMore, moreError, pending: first.pending, error: first.error, refresh: first.refresh }
+}

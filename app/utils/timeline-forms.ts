@@ -1,0 +1,279 @@
+// What each entry form holds while it is being typed (text, in the person's own units), and how
+// it becomes the stored entry (numbers, metric) and back again for an amendment.
+import type { UnitSystem } from '#shared/types'
+import type { EntryKind } from '#shared/utils/timeline-schemas'
+import { BODY_SYSTEMS } from '#shared/utils/timeline-schemas'
+import { convert, formatLength, formatMass } from '#shared/utils/units'
+
+type Data = Record<string, unknown>
+
+/** A typed number: "1,25" is 1.25; an empty field is nothing; anything else is NaN, which the schema names. */
+export function typedNumber(text: string): number | undefined {
+  const trimmed = String(text ?? '').trim().replace(',', '.')
+  if (trimmed === '') return undefined
+  return /^-?\d*\.?\d+$/.test(trimmed) ? Number(trimmed) : Number.NaN
+}
+
+const textOrUndefined = (text: string) => (text.trim() === '' ? undefined : text.trim())
+const shown = (value: unknown) => (value === undefined || value === null ? '' : String(value))
+const tidy = (value: number, digits: number) => String(Number(value.toFixed(digits)))
+
+export function todayLocal() {
+  const now = new Date()
+  return `${now.getFullYear()}-${String(now.getMonth() + 1).padStart(2, '0')}-${String(now.getDate()).padStart(2, '0')}`
+}
+
+export function nowLocalTime() {
+  const now = new Date()
+  return `${String(now.getHours()).padStart(2, '0')}:${String(now.getMinutes()).padStart(2, '0')}`
+}
+
+/** The moment the person picked, in their own time zone, as the server stores it. */
+export function occurredAtFrom(day: string, time: string) {
+  if (!/^\d{4}-\d{2}-\d{2}$/.test(day)) return day
+  const moment = new Date(`${day}T${/^\d{2}:\d{2}$/.test(time) ? time : '12:00'}`)
+  return Number.isNaN(moment.getTime()) ? day : moment.toISOString()
+}
+
+// ---- measurement ------------------------------------------------------------------------------
+
+export interface MeasurementForm { weight: string, weightUnit: 'g' | 'kg', pounds: string, ounces: string, length: string, lengthType: string, note: string }
+
+function measurementBlank(): MeasurementForm {
+  return { weight: '', weightUnit: 'g', pounds: '', ounces: '', length: '', lengthType: 'total', note: '' }
+}
+
+function measurementData(form: MeasurementForm, units: UnitSystem): Data {
+  let weightG: number | undefined
+  let weightText: string | undefined
+  if (units === 'us') {
+    const pounds = typedNumber(form.pounds)
+    const ounces = typedNumber(form.ounces)
+    if (pounds !== undefined || ounces !== undefined) {
+      weightG = convert(pounds ?? 0, 'lb', 'g') + convert(ounces ?? 0, 'oz', 'g')
+      weightText = [pounds !== undefined ? `${form.pounds.trim()} lb` : '', ounces !== undefined ? `${form.ounces.trim()} oz` : ''].filter(Boolean).join(' ')
+    }
+  }
+  else {
+    const weight = typedNumber(form.weight)
+    if (weight !== undefined) {
+      weightG = Number.isNaN(weight) ? weight : convert(weight, form.weightUnit, 'g')
+      weightText = `${form.weight.trim()} ${form.weightUnit}`
+    }
+  }
+  const length = typedNumber(form.length)
+  const lengthCm = length === undefined || Number.isNaN(length) ? length : convert(length, units === 'us' ? 'in' : 'cm', 'cm')
+  const entered = units === 'us' || form.weightUnit === 'kg'
+    ? { weight: weightText, length: length !== undefined ? `${form.length.trim()} ${units === 'us' ? 'in' : 'cm'}` : undefined }
+    : undefined
+  return {
+    weightG: weightG === undefined || Number.isNaN(weightG) ? weightG : Number(weightG.toFixed(3)),
+    lengthCm: lengthCm === undefined || Number.isNaN(lengthCm) ? lengthCm : Number(lengthCm.toFixed(3)),
+    lengthType: form.lengthType,
+    entered: entered && (entered.weight || entered.length) ? entered : undefined,
+    note: textOrUndefined(form.note),
+  }
+}
+
+function measurementForm(data: Data, units: UnitSystem): MeasurementForm {
+  const form = measurementBlank()
+  const weightG = data.weightG as number | undefined
+  const lengthCm = data.lengthCm as number | undefined
+  if (weightG !== undefined) {
+    if (units === 'us') {
+      const totalOunces = convert(weightG, 'g', 'oz')
+      const pounds = Math.floor(totalOunces / 16)
+      form.pounds = pounds ? String(pounds) : ''
+      form.ounces = tidy(totalOunces - pounds * 16, 1)
+    }
+    else if (weightG >= 1000) {
+      form.weight = tidy(weightG / 1000, 3)
+      form.weightUnit = 'kg'
+    }
+    else form.weight = tidy(weightG, 1)
+  }
+  if (lengthCm !== undefined) form.length = units === 'us' ? tidy(convert(lengthCm, 'cm', 'in'), 2) : tidy(lengthCm, 1)
+  form.lengthType = String(data.lengthType ?? 'total')
+  form.note = shown(data.note)
+  return form
+}
+
+/** What the person typed, in their units, for the line under the fields. */
+export function measurementPreview(form: MeasurementForm, units: UnitSystem) {
+  const data = measurementData(form, units)
+  const parts = [
+    typeof data.weightG === 'number' && !Number.isNaN(data.weightG) ? formatMass(data.weightG, units === 'us' ? 'metric' : 'us') : '',
+    typeof data.lengthCm === 'number' && !Number.isNaN(data.lengthCm) ? formatLength(data.lengthCm, units === 'us' ? 'metric' : 'us') : '',
+  ].filter(Boolean)
+  return { data, other: parts.join(' · ') }
+}
+
+// ---- observation, exam, problem ---------------------------------------------------------------
+
+export interface ObservationForm { signs: string[], text: string, photoId: string }
+export interface ExamForm { reason: string, history: string, findings: Record<string, { state: string, note: string }>, assessment: string, plan: string }
+export interface ProblemForm { name: string, onset: string, status: string, resolvedOn: string, notes: string }
+
+function examBlank(): ExamForm {
+  return { reason: '', history: '', findings: Object.fromEntries(BODY_SYSTEMS.map(s => [s, { state: '', note: '' }])), assessment: '', plan: '' }
+}
+
+// ---- procedure and anaesthesia ----------------------------------------------------------------
+
+export interface AnaesthesiaForm { agent: string, concentration: string, buffer: string, waterTemperature: string, induction: string, recovery: string, monitoring: string }
+export interface ProcedureForm { name: string, bodySite: string, side: string, surgeon: string, notes: string, outcome: string, recheckOn: string, withAnaesthesia: boolean, anaesthesia: AnaesthesiaForm }
+
+function anaesthesiaBlank(): AnaesthesiaForm {
+  return { agent: 'MS-222 (tricaine methanesulfonate)', concentration: '', buffer: 'Sodium bicarbonate', waterTemperature: '', induction: '', recovery: '', monitoring: '' }
+}
+
+function anaesthesiaData(form: AnaesthesiaForm, units: UnitSystem): Data {
+  const temperature = typedNumber(form.waterTemperature)
+  const celsius = temperature === undefined || Number.isNaN(temperature) ? temperature : Number(convert(temperature, units === 'us' ? 'f' : 'c', 'c').toFixed(2))
+  return {
+    agent: form.agent, concentrationMgL: typedNumber(form.concentration), buffer: form.buffer,
+    waterTemperatureC: celsius, inductionMinutes: typedNumber(form.induction), recoveryMinutes: typedNumber(form.recovery),
+    monitoring: form.monitoring,
+    entered: units === 'us' && temperature !== undefined ? { waterTemperature: `${form.waterTemperature.trim()} °F` } : undefined,
+  }
+}
+
+function anaesthesiaForm(data: Data, units: UnitSystem): AnaesthesiaForm {
+  const celsius = data.waterTemperatureC as number | undefined
+  return {
+    agent: shown(data.agent), concentration: shown(data.concentrationMgL), buffer: shown(data.buffer),
+    waterTemperature: celsius === undefined ? '' : units === 'us' ? tidy(convert(celsius, 'c', 'f'), 1) : tidy(celsius, 1),
+    induction: shown(data.inductionMinutes), recovery: shown(data.recoveryMinutes), monitoring: shown(data.monitoring),
+  }
+}
+
+// ---- treatment, lab result, companion, death --------------------------------------------------
+
+export interface TreatmentForm {
+  drug: string, route: string, injectionSite: string, dose: string, doseUnit: string, startOn: string,
+  endMode: 'duration' | 'end' | 'open', durationDays: string, endOn: string, givenBy: string, givenOnInstructionOf: string, notes: string
+}
+export interface LabForm {
+  panel: string, panelName: string, laboratory: string, sample: string, intervalSource: string,
+  analytes: { name: string, value: string, unit: string, low: string, high: string }[]
+  organisms: { name: string, count: string }[]
+  findings: string
+}
+export interface CompanionForm { relatedFishId: string, relation: string, relationText: string, note: string }
+export interface DeathForm { cause: string, euthanased: boolean, necropsy: string }
+
+export type EntryForms = {
+  measurement: MeasurementForm, observation: ObservationForm, exam: ExamForm, problem: ProblemForm, procedure: ProcedureForm,
+  anaesthesia: AnaesthesiaForm, treatment: TreatmentForm, lab_result: LabForm, companion: CompanionForm, death: DeathForm
+}
+
+export interface FormContext { units: UnitSystem, userName: string, limited: boolean }
+
+export function blankForm<K extends EntryKind>(kind: K, context: FormContext): EntryForms[K] {
+  const today = todayLocal()
+  const blanks: { [Kind in EntryKind]: () => EntryForms[Kind] } = {
+    measurement: measurementBlank,
+    observation: () => ({ signs: [], text: '', photoId: '' }),
+    exam: examBlank,
+    problem: () => ({ name: '', onset: today, status: context.limited ? 'suspected' : 'active', resolvedOn: '', notes: '' }),
+    procedure: () => ({ name: '', bodySite: '', side: '', surgeon: context.userName, notes: '', outcome: '', recheckOn: '', withAnaesthesia: true, anaesthesia: anaesthesiaBlank() }),
+    anaesthesia: anaesthesiaBlank,
+    treatment: () => ({
+      drug: '', route: 'bath', injectionSite: '', dose: '', doseUnit: 'mg/L', startOn: today, endMode: 'duration', durationDays: '', endOn: '',
+      givenBy: context.userName, givenOnInstructionOf: '', notes: '',
+    }),
+    lab_result: () => ({ panel: 'haematology', panelName: '', laboratory: '', sample: '', intervalSource: '', analytes: [], organisms: [], findings: '' }),
+    companion: () => ({ relatedFishId: '', relation: 'always_together', relationText: '', note: '' }),
+    death: () => ({ cause: '', euthanased: false, necropsy: '' }),
+  }
+  return blanks[kind]()
+}
+
+/** The entry's data as the schema expects it. */
+export function formData(kind: EntryKind, form: EntryForms[EntryKind], units: UnitSystem): Data {
+  switch (kind) {
+    case 'measurement': return measurementData(form as MeasurementForm, units)
+    case 'observation': {
+      const f = form as ObservationForm
+      return { signs: f.signs, text: f.text, photoId: f.photoId || undefined }
+    }
+    case 'exam': {
+      const f = form as ExamForm
+      const findings = Object.entries(f.findings).filter(([, v]) => v.state).map(([system, v]) => ({ system, state: v.state, note: v.note }))
+      return { reason: f.reason, history: f.history, findings, assessment: f.assessment, plan: f.plan }
+    }
+    case 'problem': {
+      const f = form as ProblemForm
+      return { name: f.name, onset: f.onset, status: f.status, resolvedOn: f.status === 'resolved' ? f.resolvedOn || undefined : undefined, notes: f.notes }
+    }
+    case 'procedure': {
+      const f = form as ProcedureForm
+      return { name: f.name, bodySite: f.bodySite, side: f.side || undefined, surgeon: f.surgeon, notes: f.notes, outcome: f.outcome, recheckOn: f.recheckOn || undefined }
+    }
+    case 'anaesthesia': return anaesthesiaData(form as AnaesthesiaForm, units)
+    case 'treatment': {
+      const f = form as TreatmentForm
+      return {
+        drug: f.drug, route: f.route, injectionSite: f.route === 'injection' ? textOrUndefined(f.injectionSite) : undefined,
+        dose: typedNumber(f.dose), doseUnit: f.doseUnit, startOn: f.startOn,
+        durationDays: f.endMode === 'duration' ? typedNumber(f.durationDays) : undefined,
+        endOn: f.endMode === 'end' ? f.endOn || undefined : undefined,
+        givenBy: f.givenBy, givenOnInstructionOf: textOrUndefined(f.givenOnInstructionOf), notes: f.notes,
+      }
+    }
+    case 'lab_result': {
+      const f = form as LabForm
+      return {
+        panel: f.panel, panelName: f.panel === 'other' ? textOrUndefined(f.panelName) : undefined, laboratory: f.laboratory, sample: f.sample,
+        intervalSource: f.intervalSource,
+        analytes: f.analytes.filter(a => a.name.trim() || a.value.trim()).map(a => ({
+          name: a.name, value: typedNumber(a.value), unit: a.unit, low: typedNumber(a.low), high: typedNumber(a.high),
+        })),
+        organisms: f.organisms.filter(o => o.name.trim() || o.count.trim()),
+        findings: f.findings,
+      }
+    }
+    case 'companion': {
+      const f = form as CompanionForm
+      return { relatedFishId: f.relatedFishId, relation: f.relation, relationText: f.relation === 'other' ? textOrUndefined(f.relationText) : undefined, note: f.note }
+    }
+    case 'death': return { ...(form as DeathForm) }
+  }
+}
+
+/** Procedure with its anaesthesia record: the one request that writes both. */
+export function procedureExtras(form: ProcedureForm, units: UnitSystem) {
+  return form.withAnaesthesia ? { anaesthesia: anaesthesiaData(form.anaesthesia, units) } : {}
+}
+
+/** An existing entry back into its form, for an amendment. */
+export function formFromData(kind: EntryKind, data: Data, context: FormContext): EntryForms[EntryKind] {
+  const blank = blankForm(kind, context)
+  switch (kind) {
+    case 'measurement': return measurementForm(data, context.units)
+    case 'anaesthesia': return anaesthesiaForm(data, context.units)
+    case 'exam': {
+      const form = blank as ExamForm
+      for (const finding of (data.findings ?? []) as { system: string, state: string, note: string }[]) form.findings[finding.system] = { state: finding.state, note: finding.note ?? '' }
+      return { ...form, reason: shown(data.reason), history: shown(data.history), assessment: shown(data.assessment), plan: shown(data.plan) }
+    }
+    case 'procedure': return { ...(blank as ProcedureForm), ...stringsOf(data, ['name', 'bodySite', 'side', 'surgeon', 'notes', 'outcome', 'recheckOn']), withAnaesthesia: false }
+    case 'treatment': {
+      const form = { ...(blank as TreatmentForm), ...stringsOf(data, ['drug', 'route', 'injectionSite', 'dose', 'doseUnit', 'startOn', 'durationDays', 'endOn', 'givenBy', 'givenOnInstructionOf', 'notes']) }
+      form.endMode = data.endOn ? 'end' : data.durationDays !== undefined ? 'duration' : 'open'
+      return form
+    }
+    case 'lab_result': return {
+      ...(blank as LabForm), ...stringsOf(data, ['panel', 'panelName', 'laboratory', 'sample', 'intervalSource', 'findings']),
+      analytes: ((data.analytes ?? []) as Data[]).map(a => stringsOf(a, ['name', 'value', 'unit', 'low', 'high']) as LabForm['analytes'][number]),
+      organisms: ((data.organisms ?? []) as Data[]).map(o => stringsOf(o, ['name', 'count']) as LabForm['organisms'][number]),
+    }
+    case 'observation': return { signs: [...((data.signs ?? []) as string[])], text: shown(data.text), photoId: shown(data.photoId) }
+    case 'death': return { cause: shown(data.cause), euthanased: Boolean(data.euthanased), necropsy: shown(data.necropsy) }
+    default: return { ...blank, ...stringsOf(data, Object.keys(blank)) }
+  }
+}
+
+function stringsOf(data: Data, keys: string[]): Record<string, string> {
+  return Object.fromEntries(keys.map(k => [k, shown(data[k])]))
+}

@@ -1,0 +1,74 @@
+// Words the timeline shows for the stored values.
+import type { TimelineKind } from '#shared/utils/timeline-schemas'
+
+export const KIND_LABELS: Record<TimelineKind, string> = {
+  measurement: 'Weight & length',
+  observation: 'Observation',
+  exam: 'Exam',
+  problem: 'Problem',
+  procedure: 'Procedure',
+  anaesthesia: 'Anaesthesia',
+  treatment: 'Treatment',
+  lab_result: 'Lab result',
+  companion: 'Companion',
+  death: 'Death',
+  photo: 'Photo',
+  move: 'Move',
+  owner_change: 'New owner',
+}
+
+// Colour per kind from our palette: clinical kinds warm, daily care cool, states by meaning.
+export const KIND_TONES: Record<TimelineKind, string> = {
+  measurement: 'bg-pond-100 text-pond-800',
+  observation: 'bg-reed-100 text-reed-700',
+  exam: 'bg-koi-100 text-koi-800',
+  problem: 'bg-clay-100 text-clay-700',
+  procedure: 'bg-koi-200 text-koi-900',
+  anaesthesia: 'bg-koi-50 text-koi-800',
+  treatment: 'bg-sand-200 text-pond-900',
+  lab_result: 'bg-pond-50 text-pond-700',
+  companion: 'bg-reed-100 text-reed-700',
+  death: 'bg-pond-900 text-white',
+  photo: 'bg-sand-100 text-pond-700',
+  move: 'bg-sand-100 text-pond-700',
+  owner_change: 'bg-sand-100 text-pond-700',
+}
+
+export const SIGN_LABELS: Record<string, string> = {
+  eating_well: 'Eating well', poor_appetite: 'Poor appetite', not_eating: 'Not eating', lethargic: 'Lethargic',
+  flashing: 'Flashing', rubbing: 'Rubbing', clamped_fins: 'Clamped fins', gasping: 'Gasping at the surface', hiding: 'Hiding',
+  sitting_on_bottom: 'Sitting on the bottom', floating: 'Floating', erratic_swimming: 'Erratic swimming',
+  white_spots: 'White spots', red_streaks: 'Red streaks', ulcer: 'Ulcer', fin_damage: 'Fin damage', cloudy_eye: 'Cloudy eye',
+  raised_scales: 'Raised scales', pale_gills: 'Pale gills', excess_mucus: 'Excess mucus', swollen_belly: 'Swollen belly', lump: 'Lump', thin: 'Thin',
+}
+
+export const BODY_SYSTEM_LABELS: Record<string, string> = {
+  general: 'General condition', skin: 'Skin & scales', fins: 'Fins', gills: 'Gills', eyes: 'Eyes', mouth: 'Mouth',
+  buoyancy: 'Buoyancy & swimming', coelom: 'Body cavity', vent: 'Vent', musculoskeletal: 'Muscles & skeleton',
+}
+
+export const FINDING_LABELS: Record<string, string> = { normal: 'Normal', abnormal: 'Abnormal', not_examined: 'Not examined' }
+export const SIDE_LABELS: Record<string, string> = { left: 'Left', right: 'Right', both: 'Both', not_applicable: 'Not applicable' }
+export const ROUTE_LABELS: Record<string, string> = { bath: 'Bath', dip: 'Dip', injection: 'Injection', in_feed: 'In feed', topical: 'Topical' }
+export const PANEL_LABELS: Record<string, string> = {
+  haematology: 'Haematology', biochemistry: 'Biochemistry', skin_scrape: 'Skin scrape', gill_biopsy: 'Gill biopsy', culture: 'Culture', other: 'Other test',
+}
+export const RELATION_LABELS: Record<string, string> = {
+  guides: 'Guides', always_together: 'Always together', aggressive_toward: 'Aggressive toward', avoids: 'Avoids', other: 'Other',
+}
+export const PROBLEM_STATUS_LABELS: Record<string, string> = { suspected: 'Suspected', active: 'Active', resolved: 'Resolved' }
+export const LENGTH_TYPE_LABELS: Record<string, string> = { total: 'total length', fork: 'fork length', standard: 'standard length' }
+
+/** "18 Apr 2023" in the reader's own calendar. */
+export function formatEntryDate(iso: string) {
+  return new Date(iso).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric' })
+}
+
+export function formatEntryTime(iso: string) {
+  return new Date(iso).toLocaleTimeString('en-GB', { hour: '2-digit', minute: '2-digit' })
+}
+
+/** A stored calendar day (YYYY-MM-DD) shown the same way, without any time-zone shift. */
+export function formatDay(day: string) {
+  return new Date(`${day}T12:00:00Z`).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
+}

@@ -1,0 +1,2 @@
+DROP INDEX "timeline_fish_kind_occurred_idx";--> statement-breakpoint
+CREATE INDEX "timeline_fish_kind_occurred_idx" ON "timeline_entries" USING btree ("fish_id","kind","occurred_at" DESC NULLS LAST,"id" DESC NULLS LAST);

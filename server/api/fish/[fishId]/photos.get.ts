@@ -1,0 +1,24 @@
+import { and, desc, eq, gt, isNull, or, sql } from 'drizzle-orm'
+import type { FishPhotos } from '#shared/types'
+import { fishIdParams } from '#shared/utils/fish-schemas'
+import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
+
+export default defineEventHandler(async (event): Promise<FishPhotos> => {
+  const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
+  const { fish, role, user } = await requireFishRole(event, fishId)
+  const cutoff = new Date(Date.now() - RECOVERABLE_DAYS * 86_400_000)
+  const rows = await useDb().select({ photo: schema.photos, uploaderName: schema.users.name })
+    .from(schema.photos)
+    .innerJoin(schema.users, eq(schema.users.id, schema.photos.uploaderId))
+    .where(and(eq(schema.photos.fishId, fishId), or(isNull(schema.photos.removedAt), gt(schema.photos.removedAt, cutoff))))
+    // Newest first by the day the photo was taken, the upload time standing in where the photo has no date.
+    .orderBy(desc(sql`coalesce(${schema.photos.takenAt}, ${schema.photos.createdAt})`), desc(schema.photos.createdAt))
+  const context = { user, role, profilePhotoId: fish.profilePhotoId }
+  const items = rows.map(row => toPhotoItem(row.photo, row.uploaderName, context))
+  return {
+    photos: items.filter(item => !item.removedAt),
+    removed: items.filter(item => item.removedAt && item.canRemove),
+    canUpload: PHOTO_ADD_ROLES.includes(role),
+    canSetProfile: PROFILE_PHOTO_ROLES.includes(role),
+  }
+})

@@ -1,0 +1,128 @@
+import { randomBytes, randomUUID } from 'node:crypto'
+import { createWriteStream } from 'node:fs'
+import { mkdir, rm } from 'node:fs/promises'
+import { dirname } from 'node:path'
+import { pipeline } from 'node:stream/promises'
+import { eq, sql } from 'drizzle-orm'
+import type { ZipFile } from 'yauzl'
+import type { ValidatedArchive } from './archive-validate'
+
+const BATCH = 500
+
+/** Old archive id → new id, made on first sight so references may point forward in a file. */
+class IdMap {
+  private map = new Map<string, string>()
+  get(old: string) {
+    let id = this.map.get(old)
+    if (!id) this.map.set(old, (id = randomUUID()))
+    return id
+  }
+
+  maybe(old: string | null) {
+    return old === null ? null : this.get(old)
+  }
+}
+
+async function inBatches<T>(records: AsyncIterable<T>, write: (batch: T[]) => Promise<unknown>) {
+  let batch: T[] = []
+  for await (const record of records) {
+    batch.push(record)
+    if (batch.length >= BATCH) {
+      await write(batch)
+      batch = []
+    }
+  }
+  if (batch.length) await write(batch)
+}
+
+/**
+ * Writes a validated archive as a new pond owned by the importer, in one transaction: fish, profile
+ * changes and every timeline entry keep their original authors and dates. Authors unknown here get an
+ * account that cannot sign in until its owner resets the password by e-mail. Photo originals are copied
+ * first and removed again if the transaction fails; their sizes are made after the commit.
+ */
+export async function importArchive(zip: ZipFile, archive: ValidatedArchive, importerId: string) {
+  const fishIds = new IdMap()
+  const photoIds = new IdMap()
+  const entryIds = new IdMap()
+  const people = new Map<string, string>()
+  const copied: string[] = []
+  const uploadIds: string[] = []
+  try {
+    const pondId = await useDb().transaction(async (tx) => {
+      for await (const person of archiveRecords(zip, archive, 'people')) {
+        const [existing] = await tx.select({ id: schema.users.id }).from(schema.users).where(sql`lower(${schema.users.email}) = ${person.email.toLowerCase()}`).limit(1)
+        if (existing) people.set(person.ref, existing.id)
+        else {
+          const [created] = await tx.insert(schema.users).values({ name: person.name, email: person.email.toLowerCase(), passwordHash: await hashPassword(randomBytes(32).toString('hex')) }).returning({ id: schema.users.id })
+          people.set(person.ref, created!.id)
+        }
+      }
+      const author = (ref: string) => people.get(ref)!
+      const { pond } = archive.manifest
+      const [created] = await tx.insert(schema.ponds).values({ name: pond.name, volumeLitres: pond.volumeLitres, notes: pond.notes }).returning({ id: schema.ponds.id })
+      const newPondId = created!.id
+      await tx.insert(schema.memberships).values({ pondId: newPondId, userId: importerId, role: 'owner' })
+
+      await inBatches(archiveRecords(zip, archive, 'fish'), batch => tx.insert(schema.fish).values(batch.map(f => ({
+        id: fishIds.get(f.id), pondId: newPondId, name: f.name, species: f.species, scientificName: f.scientificName, variety: f.variety, sex: f.sex,
+        hatchYear: f.hatchYear, hatchYearEstimated: f.hatchYearEstimated, acquiredOn: f.acquiredOn, acquiredFrom: f.acquiredFrom,
+        microchip: f.microchip, features: f.features, status: f.status, createdAt: new Date(f.createdAt), updatedAt: new Date(f.updatedAt),
+      })))).catch((error) => {
+        throw conflictFromUniqueViolation(error) ? archiveRefused('a living fish in the archive has a microchip number that a living fish here already has', 409) : error
+      })
+
+      for await (const photo of archiveRecords(zip, archive, 'photos')) {
+        const id = photoIds.get(photo.id)
+        const target = originalPath(id)
+        await mkdir(dirname(target), { recursive: true })
+        copied.push(target)
+        await pipeline(await entryStream(zip, archive.entries.get(photo.file)!), createWriteStream(target))
+        const uploadId = randomBytes(16).toString('hex')
+        uploadIds.push(uploadId)
+        await tx.insert(schema.photos).values({
+          id, fishId: fishIds.get(photo.fishId), uploaderId: author(photo.uploader), uploadId, originalName: photo.originalName, view: photo.view,
+          caption: photo.caption, takenAt: photo.takenAt ? new Date(photo.takenAt) : null, state: 'pending', mime: photo.mime, bytes: photo.bytes,
+          sha256: photo.sha256, createdAt: new Date(photo.createdAt),
+        })
+      }
+      for await (const f of archiveRecords(zip, archive, 'fish')) {
+        if (f.profilePhotoId) await tx.update(schema.fish).set({ profilePhotoId: photoIds.get(f.profilePhotoId) }).where(sql`${schema.fish.id} = ${fishIds.get(f.id)}`)
+      }
+
+      await inBatches(archiveRecords(zip, archive, 'fish-edits'), batch => tx.insert(schema.fishEdits).values(batch.map(e => ({
+        fishId: fishIds.get(e.fishId), userId: author(e.by), changes: e.changes, createdAt: new Date(e.createdAt),
+      }))))
+
+      // Entries go in the way the app writes them, so the record's guards (drizzle/0004) hold for imports too:
+      // revision 1 first, then each amendment on top of its revision row, then "entered in error".
+      await inBatches(archiveRecords(zip, archive, 'timeline'), async (batch) => {
+        await tx.insert(schema.timelineEntries).values(batch.map(e => ({
+          id: entryIds.get(e.id), fishId: fishIds.get(e.fishId), pondId: newPondId, kind: e.kind, occurredAt: new Date(e.revisions[0]!.occurredAt), authorId: author(e.author),
+          relatedFishId: fishIds.maybe(e.relatedFishId), linkedEntryId: entryIds.maybe(e.linkedEntryId), photoId: photoIds.maybe(e.photoId),
+          data: e.revisions[0]!.data, revision: 1, createdAt: new Date(e.createdAt),
+        })))
+        await tx.insert(schema.timelineRevisions).values(batch.flatMap(e => e.revisions.map(r => ({
+          entryId: entryIds.get(e.id), revision: r.revision, occurredAt: new Date(r.occurredAt), data: r.data, authorId: author(r.author), reason: r.reason, createdAt: new Date(r.createdAt),
+        }))))
+        for (const e of batch) {
+          const where = eq(schema.timelineEntries.id, entryIds.get(e.id))
+          for (const r of e.revisions.slice(1)) {
+            await tx.update(schema.timelineEntries).set({ revision: r.revision, data: r.data, occurredAt: new Date(r.occurredAt) }).where(where)
+          }
+          if (e.enteredInError) {
+            await tx.update(schema.timelineEntries).set({ enteredInError: true, errorReason: e.errorReason, errorById: e.errorBy ? author(e.errorBy) : null, errorAt: e.errorAt ? new Date(e.errorAt) : null }).where(where)
+          }
+        }
+      })
+      return newPondId
+    })
+    // Sizes are made outside the transaction, one job at a time like uploads; a restart picks up any left pending.
+    for (const uploadId of uploadIds) void resumePendingPhoto(uploadId).catch(error => console.error('[import] photo processing failed:', error))
+    return pondId
+  }
+  catch (error) {
+    await Promise.all(copied.map(path => rm(path, { force: true })))
+    throw error
+  }
+}

@@ -1,0 +1,109 @@
+// Inputs and words of custody: a pond handed to a new owner, a fish moved or rehomed.
+import { z } from 'zod'
+import { emailSchema } from './auth-schemas'
+
+export const HANDOVER_MEMBERS_OPTIONS = ['stay', 'read_only', 'leave'] as const
+export type HandoverMembersOption = typeof HANDOVER_MEMBERS_OPTIONS[number]
+
+/** What each option does, in the words the offer form and the acceptance page show. */
+export const HANDOVER_MEMBERS_WORDS: Record<HandoverMembersOption, { label: string, detail: string }> = {
+  stay: {
+    label: 'They stay',
+    detail: 'Keepers and vets keep their roles; you and any other owner stay on as keepers.',
+  },
+  read_only: {
+    label: 'They become read-only',
+    detail: 'Everyone now in the pond, you included, can still see its whole history but change nothing.',
+  },
+  leave: {
+    label: 'They leave',
+    detail: 'Everyone now in the pond, you included, loses access when the new owner accepts.',
+  },
+}
+
+export const HANDOVER_LIFETIME_DAYS = 14
+
+export const handoverCreateSchema = z.strictObject({
+  email: emailSchema,
+  membersOption: z.enum(HANDOVER_MEMBERS_OPTIONS, 'Choose what happens to the current members'),
+})
+
+export const handoverIdParams = z.object({ pondId: z.uuid('Not a valid id'), handoverId: z.uuid('Not a valid id') })
+
+export type OfferState = 'open' | 'accepted' | 'withdrawn' | 'expired' | 'superseded'
+
+export interface HandoverInfo {
+  pondName: string
+  fromName: string
+  email: string
+  membersOption: HandoverMembersOption
+  state: OfferState
+  expiresAt: string
+  fishCount: number
+}
+
+export interface HandoverOffer {
+  id: string
+  email: string
+  membersOption: HandoverMembersOption
+  expiresAt: string
+  createdAt: string
+}
+
+export const memberReadOnlySchema = z.strictObject({ readOnly: z.boolean('Yes or no') })
+
+// ---- moving and rehoming a fish -------------------------------------------------------------
+
+const confirmSeparation = z.boolean('Yes or no').optional().default(false)
+
+export const fishMoveSchema = z.strictObject({
+  toPondId: z.uuid('Choose one of your ponds'),
+  confirmSeparation,
+})
+
+export const fishTransferCreateSchema = z.strictObject({
+  email: emailSchema,
+  confirmSeparation,
+})
+
+/** The new owner takes the fish into a pond of theirs, or into a new one named here. */
+export const transferAcceptSchema = z.strictObject({
+  toPondId: z.uuid('Choose one of your ponds').optional(),
+  newPondName: z.string().trim().min(1, 'Give the new pond a name').max(120, 'At most 120 characters').optional(),
+}).refine(d => (d.toPondId === undefined) !== (d.newPondName === undefined), { message: 'Choose one of your ponds or name a new one', path: ['toPondId'] })
+
+export const transferIdParams = z.object({ fishId: z.uuid('Not a valid id'), transferId: z.uuid('Not a valid id') })
+
+export interface FishTransferOffer {
+  id: string
+  email: string
+  expiresAt: string
+  createdAt: string
+}
+
+export interface FishTransferInfo {
+  fishName: string
+  species: string
+  variety: string
+  fromPondName: string
+  fromName: string
+  email: string
+  state: OfferState
+  expiresAt: string
+  /** Why it fell, when the fish moved or its pond changed hands before anyone accepted. */
+  reason: string | null
+}
+
+export interface FishResidence {
+  pondId: string
+  pondName: string
+  /** Calendar day the fish arrived: its acquired date or its record's creation for the first pond. */
+  from: string
+  /** Calendar day it left; null for the pond it lives in now. */
+  until: string | null
+  current: boolean
+  /** The pond is still one the caller can open. */
+  visible: boolean
+}
+
+export interface SeparatedCompanion { id: string, name: string }
