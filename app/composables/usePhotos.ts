@@ -22,6 +22,6 @@ export function photoDateLabel(photo: Pick<PhotoItem, 'takenAt' | 'uploadedAt'>)
   return photo.takenAt ? `Taken ${DAY.format(new Date(photo.takenAt))}` : `Uploaded ${DAY.format(new Date(photo.uploadedAt))}`
 }
 
-export function formatDay(iso: string) {
+export function formatPhotoDay(iso: string) {
   return DAY.format(new Date(iso))
 }

@@ -150,11 +150,25 @@ function anaesthesiaForm(data: Data, units: UnitSystem): AnaesthesiaForm {
 // ---- treatment, lab result, companion, death --------------------------------------------------
 
 export interface TreatmentForm {
-  drug: string, route: string, injectionSite: string, dose: string, doseUnit: string, startOn: string,
-  endMode: 'duration' | 'end' | 'open', durationDays: string, endOn: string, givenBy: string, givenOnInstructionOf: string, notes: string
+  drug: string
+  route: string
+  injectionSite: string
+  dose: string
+  doseUnit: string
+  startOn: string
+  endMode: 'duration' | 'end' | 'open'
+  durationDays: string
+  endOn: string
+  givenBy: string
+  givenOnInstructionOf: string
+  notes: string
 }
 export interface LabForm {
-  panel: string, panelName: string, laboratory: string, sample: string, intervalSource: string,
+  panel: string
+  panelName: string
+  laboratory: string
+  sample: string
+  intervalSource: string
   analytes: { name: string, value: string, unit: string, low: string, high: string }[]
   organisms: { name: string, count: string }[]
   findings: string
@@ -162,9 +176,17 @@ export interface LabForm {
 export interface CompanionForm { relatedFishId: string, relation: string, relationText: string, note: string }
 export interface DeathForm { cause: string, euthanased: boolean, necropsy: string }
 
-export type EntryForms = {
-  measurement: MeasurementForm, observation: ObservationForm, exam: ExamForm, problem: ProblemForm, procedure: ProcedureForm,
-  anaesthesia: AnaesthesiaForm, treatment: TreatmentForm, lab_result: LabForm, companion: CompanionForm, death: DeathForm
+export interface EntryForms {
+  measurement: MeasurementForm
+  observation: ObservationForm
+  exam: ExamForm
+  problem: ProblemForm
+  procedure: ProcedureForm
+  anaesthesia: AnaesthesiaForm
+  treatment: TreatmentForm
+  lab_result: LabForm
+  companion: CompanionForm
+  death: DeathForm
 }
 
 export interface FormContext { units: UnitSystem, userName: string, limited: boolean }

@@ -94,7 +94,7 @@ export interface OfferedKind {
 
 /** The kinds the add buttons offer to someone with this role, in the order they are shown. */
 export function kindsOffered(role: PondRole): OfferedKind[] {
-  return (Object.entries(ENTRY_RULES) as [EntryKind, EntryRule][]).flatMap(([kind, rule]) => {
+  return (Object.entries(ENTRY_RULES) as [EntryKind, EntryRule][]).flatMap(([kind, rule]): OfferedKind[] => {
     if (rule.roles.includes(role)) return [{ kind, label: rule.label, limited: false }]
     if (rule.limited?.roles.includes(role)) return [{ kind, label: rule.limited.offerLabel, limited: true }]
     return []

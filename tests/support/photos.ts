@@ -194,7 +194,7 @@ export function fileSha256(path: string) {
 
 export async function photoRows(where: string, params: unknown[]) {
   const { rows } = await testDb().query(`select * from photos where ${where}`, params)
-  return rows as { id: string, upload_id: string, state: string, sha256: string, fish_id: string, uploader_id: string, failure_reason: string | null, removed_at: Date | null, width: number, height: number, taken_at: Date | null, variants: { longSide: number, width: number, height: number, format: string }[] }[]
+  return rows as { id: string, upload_id: string, caption: string, state: string, sha256: string, fish_id: string, uploader_id: string, failure_reason: string | null, removed_at: Date | null, width: number, height: number, taken_at: Date | null, variants: { longSide: number, width: number, height: number, format: string }[] }[]
 }
 
 /**

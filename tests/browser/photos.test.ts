@@ -1,0 +1,135 @@
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import type { BrowserContext, Page } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { openBrowser, screenshots, signIn } from '../support/browser'
+import { closeTestDb } from '../support/db'
+import { createFish, createPond, signedInUser } from '../support/factories'
+import { makeJpeg, makeTwentyMegabyteJpeg, photoRows } from '../support/photos'
+
+let browser: BrowserContext
+let files: string
+
+beforeAll(async () => {
+  browser = await openBrowser()
+  files = mkdtempSync(join(tmpdir(), 'fintrail-photo-files-'))
+})
+afterAll(async () => {
+  await browser?.close()
+  rmSync(files, { recursive: true, force: true })
+  await closeTestDb()
+})
+
+async function ownerWithFish(name: string) {
+  const owner = await signedInUser({ name: 'Photo Owner' })
+  const pond = await createPond(owner.client, { name: `Photo pond ${Date.now() % 100000}` })
+  const fish = await createFish(owner.client, pond.id, { name })
+  return { owner, pond, fish }
+}
+
+async function openUploader(page: Page) {
+  await page.getByTestId('add-photos').click()
+  await page.locator('.uppy-Dashboard-inner').waitFor()
+}
+
+/** Adds files through the Dashboard's own file input, as choosing them from the library does. */
+async function addFiles(page: Page, paths: string[]) {
+  await page.locator('input.uppy-Dashboard-input[type="file"]').first().setInputFiles(paths)
+}
+
+describe('photos on a fish profile, in Chromium', () => {
+  it('adds a photo through the Dashboard: progress finishes, the thumbnail appears in the gallery and on the card', async () => {
+    const { owner, pond, fish } = await ownerWithFish('Hoshi')
+    const path = join(files, 'hoshi-from-above.jpg')
+    writeFileSync(path, await makeJpeg({ width: 3000, height: 2250, takenAt: '2025:04:20 10:15:00' }))
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`)
+    await page.getByTestId('photo-gallery').waitFor()
+    await openUploader(page)
+    await addFiles(page, [path])
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click()
+    await page.locator('.uppy-StatusBar.is-complete').waitFor({ timeout: 30_000 })
+    const tile = page.locator('[data-testid^="photo-"][data-state="ready"]').first()
+    await tile.waitFor()
+    await expect.poll(() => tile.getByTestId('photo-thumb').evaluate(img => (img as HTMLImageElement).naturalWidth)).toBeGreaterThan(0)
+    await expect.poll(() => tile.textContent()).toContain('Taken 20 Apr 2025')
+    await expect.poll(() => tile.textContent()).toContain('Profile picture')
+    // The first photo became the profile picture at the top of the profile.
+    const portrait = page.locator(`img[alt="Photo of Hoshi"]`)
+    await expect.poll(() => portrait.evaluate(img => (img as HTMLImageElement).naturalWidth)).toBeGreaterThan(0)
+    const [row] = await photoRows('fish_id = $1', [fish.id])
+    expect(row!.state).toBe('ready')
+
+    // The large view, with its view and caption.
+    await tile.getByRole('button').first().click()
+    const viewer = page.getByTestId('photo-viewer')
+    await expect.poll(() => viewer.getByTestId('photo-large').evaluate(img => (img as HTMLImageElement).naturalWidth)).toBeGreaterThan(1000)
+    await viewer.getByLabel('Caption').fill('Tancho spot slightly left of centre')
+    await viewer.getByRole('button', { name: 'Save view and caption' }).click()
+    await expect.poll(async () => (await photoRows('fish_id = $1', [fish.id]))[0]!.caption).toBe('Tancho spot slightly left of centre')
+    await viewer.getByTestId('photo-viewer-close').click()
+    await screenshots(page, 'fish-photos')
+
+    await page.goto(`/ponds/${pond.id}`)
+    const card = page.getByTestId('fish-card-Hoshi').locator('img')
+    await expect.poll(() => card.getAttribute('src')).toBe(`/api/photos/${row!.id}/320.webp`)
+    await expect.poll(() => card.evaluate(img => (img as HTMLImageElement).naturalWidth)).toBeGreaterThan(0)
+    await page.close()
+  })
+
+  it('shows the server\'s own reason when a file is refused', async () => {
+    const { owner, fish } = await ownerWithFish('Kumo')
+    const path = join(files, 'not-really.jpg')
+    writeFileSync(path, 'This is a note, not a photo.\n')
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`)
+    await openUploader(page)
+    await addFiles(page, [path])
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click()
+    await expect.poll(() => page.getByTestId('upload-problem').textContent(), { timeout: 20_000 }).toMatch(/not-really\.jpg:.*holds text, not a photo/)
+    expect(await photoRows('fish_id = $1', [fish.id])).toEqual([])
+    await page.close()
+  })
+
+  it('continues an interrupted upload after the page is reloaded and the same photo is added again', async () => {
+    const { owner, fish } = await ownerWithFish('Ryu')
+    const path = join(files, 'ryu-large.jpg')
+    writeFileSync(path, await makeTwentyMegabyteJpeg())
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`)
+    await openUploader(page)
+    // The signal goes after the first 5 MB chunk: every later PATCH fails at the network level.
+    let patches = 0
+    await page.route('**/api/uploads/*', async (route) => {
+      if (route.request().method() === 'PATCH' && ++patches > 1) return route.abort('internetdisconnected')
+      return route.continue()
+    })
+    await addFiles(page, [path])
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click()
+    await expect.poll(() => patches, { timeout: 20_000 }).toBeGreaterThan(1)
+    await page.unroute('**/api/uploads/*')
+
+    const offsets: string[] = []
+    const creations: string[] = []
+    page.on('request', (request) => {
+      if (request.url().includes('/api/uploads') && request.method() === 'PATCH') offsets.push(request.headers()['upload-offset'] ?? '')
+      if (request.url().endsWith('/api/uploads') && request.method() === 'POST') creations.push(request.url())
+    })
+    await page.reload()
+    await openUploader(page)
+    await addFiles(page, [path])
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click()
+    await page.locator('.uppy-StatusBar.is-complete').waitFor({ timeout: 60_000 })
+    // No new upload was created: the first PATCH after the reload starts where the server stood.
+    expect(creations).toEqual([])
+    expect(offsets[0]).toBe(String(5 * 1024 * 1024))
+    const rows = await photoRows('fish_id = $1', [fish.id])
+    expect(rows).toHaveLength(1)
+    expect(rows[0]!.state).toBe('ready')
+    await page.close()
+  })
+})
