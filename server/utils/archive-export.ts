@@ -12,10 +12,10 @@ type Row = Record<string, unknown>
 const iso = (value: unknown) => (value == null ? null : new Date(value as string).toISOString())
 
 /** Reads a query in keyset batches so memory stays flat however big the pond is. */
-async function* batches(query: string, params: unknown[]): AsyncGenerator<Row[]> {
+async function* batches(query: string, params: unknown[], size = BATCH): AsyncGenerator<Row[]> {
   let after = '00000000-0000-0000-0000-000000000000'
   for (;;) {
-    const { rows } = await usePool().query(`${query} and t.id > $${params.length + 1} order by t.id limit ${BATCH}`, [...params, after])
+    const { rows } = await usePool().query(`${query} and t.id > $${params.length + 1} order by t.id limit ${size}`, [...params, after])
     if (!rows.length) return
     yield rows
     after = rows[rows.length - 1].id
@@ -24,7 +24,6 @@ async function* batches(query: string, params: unknown[]): AsyncGenerator<Row[]>
 
 const fishQuery = 'select t.* from fish t where t.pond_id = $1'
 const editsQuery = 'select t.* from fish_edits t join fish f on f.id = t.fish_id where f.pond_id = $1'
-const timelineQuery = 'select t.* from timeline_entries t join fish f on f.id = t.fish_id where f.pond_id = $1'
 const photosQuery = `select t.* from photos t join fish f on f.id = t.fish_id where f.pond_id = $1 and t.state = 'ready' and t.removed_at is null`
 
 async function* people(pondId: string): AsyncGenerator<ArchiveRecord<'people'>> {
@@ -59,22 +58,30 @@ async function* editRecords(pondId: string): AsyncGenerator<ArchiveRecord<'fish-
   }
 }
 
+/** Entries fish by fish (their index order), a few fish at a time, each batch with its revisions. */
 async function* timelineRecords(pondId: string): AsyncGenerator<ArchiveRecord<'timeline'>> {
-  for await (const rows of batches(timelineQuery, [pondId])) {
-    const { rows: revisions } = await usePool().query('select * from timeline_revisions where entry_id = any($1) order by entry_id, revision', [rows.map(r => r.id)])
-    const byEntry = groupBy(revisions)
-    for (const e of rows) {
-      yield {
-        id: e.id as string, fishId: e.fish_id as string, kind: e.kind as 'measurement', occurredAt: iso(e.occurred_at)!, author: e.author_id as string,
-        relatedFishId: e.related_fish_id as string | null, linkedEntryId: e.linked_entry_id as string | null, photoId: e.photo_id as string | null,
-        data: e.data as Record<string, unknown>, revision: e.revision as number, enteredInError: e.entered_in_error as boolean,
-        errorReason: e.error_reason as string | null, errorBy: e.error_by_id as string | null, errorAt: iso(e.error_at), createdAt: iso(e.created_at)!,
-        revisions: (byEntry.get(e.id as string) ?? []).map(r => ({
-          revision: r.revision as number, occurredAt: iso(r.occurred_at)!, data: r.data as Record<string, unknown>,
-          author: r.author_id as string, reason: r.reason as string | null, createdAt: iso(r.created_at)!,
-        })),
-      }
+  // Ten fish hold a few thousand entries even after twenty years of monthly weighing.
+  for await (const fishRows of batches('select t.id from fish t where t.pond_id = $1', [pondId], 10)) {
+    const { rows } = await usePool().query('select * from timeline_entries where fish_id = any($1) order by fish_id, occurred_at, id', [fishRows.map(f => f.id)])
+    for (let start = 0; start < rows.length; start += BATCH) {
+      const slice = rows.slice(start, start + BATCH)
+      const { rows: revisions } = await usePool().query('select * from timeline_revisions where entry_id = any($1) order by entry_id, revision', [slice.map(r => r.id)])
+      const byEntry = groupBy(revisions)
+      for (const e of slice) yield timelineRecord(e, byEntry.get(e.id as string) ?? [])
     }
+  }
+}
+
+function timelineRecord(e: Row, revisions: Row[]): ArchiveRecord<'timeline'> {
+  return {
+    id: e.id as string, fishId: e.fish_id as string, kind: e.kind as 'measurement', occurredAt: iso(e.occurred_at)!, author: e.author_id as string,
+    relatedFishId: e.related_fish_id as string | null, linkedEntryId: e.linked_entry_id as string | null, photoId: e.photo_id as string | null,
+    data: e.data as Record<string, unknown>, revision: e.revision as number, enteredInError: e.entered_in_error as boolean,
+    errorReason: e.error_reason as string | null, errorBy: e.error_by_id as string | null, errorAt: iso(e.error_at), createdAt: iso(e.created_at)!,
+    revisions: revisions.map(r => ({
+      revision: r.revision as number, occurredAt: iso(r.occurred_at)!, data: r.data as Record<string, unknown>,
+      author: r.author_id as string, reason: r.reason as string | null, createdAt: iso(r.created_at)!,
+    })),
   }
 }
 

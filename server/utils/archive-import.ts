@@ -50,6 +50,7 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
   const uploadIds: string[] = []
   try {
     const pondId = await useDb().transaction(async (tx) => {
+      await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'on', true)`)
       for await (const person of archiveRecords(zip, archive, 'people')) {
         const [existing] = await tx.select({ id: schema.users.id }).from(schema.users).where(sql`lower(${schema.users.email}) = ${person.email.toLowerCase()}`).limit(1)
         if (existing) people.set(person.ref, existing.id)
@@ -115,6 +116,8 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
           }
         }
       })
+      await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'off', true)`)
+      await tx.execute(sql`select fintrail_refresh_measurement_summary(id) from fish where pond_id = ${newPondId}`)
       return newPondId
     })
     // Sizes are made outside the transaction, one job at a time like uploads; a restart picks up any left pending.

@@ -6,7 +6,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { openBrowser, screenshots, signIn } from '../support/browser'
 import { closeTestDb } from '../support/db'
 import { createFish, createPond, signedInUser } from '../support/factories'
-import { makeJpeg, makeTwentyMegabyteJpeg, photoRows } from '../support/photos'
+import { MAIN_URL } from '../support/env'
+import { makeKoiPhoto, makeTwentyMegabyteJpeg, photoRows, tusUpload } from '../support/photos'
 
 let browser: BrowserContext
 let files: string
@@ -42,7 +43,7 @@ describe('photos on a fish profile, in Chromium', () => {
   it('adds a photo through the Dashboard: progress finishes, the thumbnail appears in the gallery and on the card', async () => {
     const { owner, pond, fish } = await ownerWithFish('Hoshi')
     const path = join(files, 'hoshi-from-above.jpg')
-    writeFileSync(path, await makeJpeg({ width: 3000, height: 2250, takenAt: '2025:04:20 10:15:00' }))
+    writeFileSync(path, await makeKoiPhoto(7, { width: 3000, height: 2250, takenAt: '2025:04:20 10:15:00' }))
     const page = await browser.newPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`)
@@ -65,11 +66,23 @@ describe('photos on a fish profile, in Chromium', () => {
     // The large view, with its view and caption.
     await tile.getByRole('button').first().click()
     const viewer = page.getByTestId('photo-viewer')
-    await expect.poll(() => viewer.getByTestId('photo-large').evaluate(img => (img as HTMLImageElement).naturalWidth)).toBeGreaterThan(1000)
+    // A screen-sized copy, not the 320 px thumbnail.
+    await expect.poll(() => viewer.getByTestId('photo-large').evaluate(img => (img as HTMLImageElement).complete && (img as HTMLImageElement).currentSrc)).toMatch(/\/(1024|2048)\.webp$/)
     await viewer.getByLabel('Caption').fill('Tancho spot slightly left of centre')
     await viewer.getByRole('button', { name: 'Save view and caption' }).click()
     await expect.poll(async () => (await photoRows('fish_id = $1', [fish.id]))[0]!.caption).toBe('Tancho spot slightly left of centre')
+    await screenshots(page, 'fish-photo-viewer')
     await viewer.getByTestId('photo-viewer-close').click()
+
+    // Two more, from a keeper's phone at other times, for the gallery as it usually looks.
+    for (const [seed, view, takenAt] of [[11, 'left', '2024:09:02 16:40:00'], [23, 'top', '2023:05:14 08:05:00']] as const) {
+      const result = await tusUpload(MAIN_URL, owner.client, await makeKoiPhoto(seed, { takenAt }), { metadata: { fishId: fish.id, filename: `${seed}.jpg`, view } }).done
+      expect(result.headers['photo-state']).toBe('ready')
+    }
+    await page.reload()
+    await expect.poll(() => page.locator('[data-testid^="photo-"][data-state="ready"]').count()).toBe(3)
+    await expect.poll(() => page.locator('[data-testid="photo-thumb"]').evaluateAll(imgs => imgs.every(img => (img as HTMLImageElement).complete && (img as HTMLImageElement).naturalWidth > 0))).toBe(true)
+    await page.getByTestId('photo-gallery').scrollIntoViewIfNeeded()
     await screenshots(page, 'fish-photos')
 
     await page.goto(`/ponds/${pond.id}`)
@@ -111,7 +124,6 @@ describe('photos on a fish profile, in Chromium', () => {
     await addFiles(page, [path])
     await page.locator('.uppy-StatusBar-actionBtn--upload').click()
     await expect.poll(() => patches, { timeout: 20_000 }).toBeGreaterThan(1)
-    await page.unroute('**/api/uploads/*')
 
     const offsets: string[] = []
     const creations: string[] = []
@@ -120,6 +132,8 @@ describe('photos on a fish profile, in Chromium', () => {
       if (request.url().endsWith('/api/uploads') && request.method() === 'POST') creations.push(request.url())
     })
     await page.reload()
+    // The signal is back only now: no retry of the old page slipped through before the reload.
+    await page.unroute('**/api/uploads/*')
     await openUploader(page)
     await addFiles(page, [path])
     await page.locator('.uppy-StatusBar-actionBtn--upload').click()

@@ -240,3 +240,34 @@ export async function startBuildCopy(outputDir: string, port: number) {
     },
   }
 }
+
+/**
+ * An invented koi seen from above, drawn as SVG and rendered by sharp: white body, red patches placed
+ * by `seed`, on dark pond water. Looks like a photo in screenshots; made of flat colours, it is small.
+ */
+export async function makeKoiPhoto(seed: number, options: { width?: number, height?: number, takenAt?: string } = {}) {
+  const { width = 2400, height = 1800 } = options
+  let state = seed
+  const random = () => ((state = (state * 1103515245 + 12345) % 2147483648) / 2147483648)
+  const patches = Array.from({ length: 3 + Math.floor(random() * 3) }, () => {
+    const x = 700 + random() * 900
+    const y = 780 + random() * 240
+    return `<ellipse cx="${x.toFixed(0)}" cy="${y.toFixed(0)}" rx="${(90 + random() * 120).toFixed(0)}" ry="${(60 + random() * 70).toFixed(0)}" fill="#d8321e" opacity="0.95"/>`
+  }).join('')
+  const tilt = (random() * 40 - 20).toFixed(1)
+  const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 2400 1800">
+    <defs><radialGradient id="w" cx="50%" cy="45%" r="70%"><stop offset="0" stop-color="#2f5d55"/><stop offset="1" stop-color="#0c2a2a"/></radialGradient>
+    <clipPath id="b"><ellipse cx="1150" cy="900" rx="620" ry="210"/></clipPath></defs>
+    <rect width="2400" height="1800" fill="url(#w)"/>
+    <g transform="rotate(${tilt} 1200 900)">
+      <path d="M1720 900 l330 -190 -60 190 60 190 z" fill="#f3eee4" opacity="0.85"/>
+      <ellipse cx="860" cy="720" rx="170" ry="60" fill="#f3eee4" opacity="0.7" transform="rotate(-25 860 720)"/>
+      <ellipse cx="860" cy="1080" rx="170" ry="60" fill="#f3eee4" opacity="0.7" transform="rotate(25 860 1080)"/>
+      <ellipse cx="1150" cy="900" rx="620" ry="210" fill="#f6f2ea"/>
+      <g clip-path="url(#b)">${patches}</g>
+      <circle cx="620" cy="860" r="14" fill="#1b1b1b"/><circle cx="620" cy="940" r="14" fill="#1b1b1b"/>
+    </g></svg>`
+  let image = sharp(Buffer.from(svg)).jpeg({ quality: 88 })
+  if (options.takenAt) image = image.withExif({ IFD2: { DateTimeOriginal: options.takenAt } })
+  return image.toBuffer()
+}

@@ -1,0 +1,15 @@
+import { createHash } from 'node:crypto'
+import { pondIdParams } from '#shared/utils/pond-schemas'
+import type { ImportReport } from '#shared/utils/measurement-import'
+
+/** Imports the rows that read cleanly; the answer lists every row that did not, with its reason. */
+export default defineEventHandler(async (event): Promise<ImportReport> => {
+  const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
+  const { user } = await requirePondRole(event, pondId, IMPORT_ROLES)
+  const { file, fields } = await readImportForm(event)
+  const sheet = await readSpreadsheet(file, parseMapping(fields.mapping).sheet)
+  const mapping = parseMapping(fields.mapping, sheet.columns)
+  const report = await runImport(event, pondId, user.id, sheet, mapping, createHash('sha256').update(file.data).digest('hex'))
+  setResponseStatus(event, 201)
+  return report
+})

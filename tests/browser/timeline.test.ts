@@ -1,0 +1,190 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { BrowserContext, Page } from 'playwright-core'
+import { openBrowser, screenshots, signIn } from '../support/browser'
+import { ApiClient } from '../support/client'
+import { closeTestDb, testDb } from '../support/db'
+
+const DEMO_PASSWORD = 'pondside-demo-2026'
+const VET = 'ada.okafor@example.com'
+const KEEPER = 'priya.anand@example.com'
+const US_KEEPER = 'tom.marlow@example.com'
+let browser: BrowserContext
+
+beforeAll(async () => {
+  browser = await openBrowser()
+})
+afterAll(async () => {
+  await browser?.close()
+  await closeTestDb()
+})
+
+async function apiAs(email: string) {
+  const client = new ApiClient()
+  const response = await client.post('/api/auth/sign-in', { email, password: DEMO_PASSWORD })
+  expect(response.status).toBe(200)
+  return client
+}
+
+async function demoFish(client: ApiClient, pondName: string, fishName: string) {
+  const ponds = (await client.get('/api/ponds')).body as { id: string, name: string }[]
+  const pond = ponds.find(p => p.name === pondName)!
+  const fish = (await client.get(`/api/ponds/${pond.id}/fish`)).body as { id: string, name: string }[]
+  return { pondId: pond.id, fishId: fish.find(f => f.name === fishName)!.id }
+}
+
+/** Runs a request inside the page, with its session cookie: what the browser itself would be allowed. */
+function fetchInPage(page: Page, url: string, body: unknown) {
+  return page.evaluate(async ({ url, body }) => {
+    const response = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) })
+    return response.status
+  }, { url, body })
+}
+
+describe('the life record in Chromium', () => {
+  it('lets the vet record an enucleation with its anaesthesia and shows it in the header', async () => {
+    const api = await apiAs(VET)
+    // A demo fish whose left eye is still there (each run on the same database uses the next one).
+    let chosen: { pondId: string, fishId: string, name: string } | undefined
+    for (const [pond, name] of [['Whitlock koi pond', 'Ghost'], ['Whitlock koi pond', 'Rusty'], ['Whitlock koi pond', 'Duchess'], ['Garden pond', 'Marble'], ['Garden pond', 'Tancho'], ['Garden pond', 'Juniper']] as const) {
+      const fish = await demoFish(api, pond, name)
+      if (!(await api.get(`/api/fish/${fish.fishId}/facts`)).body.eyes.left) {
+        chosen = { ...fish, name }
+        break
+      }
+    }
+    expect(chosen, 'a demo fish with a left eye').toBeDefined()
+
+    const page = await browser.newPage()
+    await signIn(page, VET, DEMO_PASSWORD)
+    await page.goto(`/fish/${chosen!.fishId}`)
+    await page.getByTestId('standing-facts').waitFor()
+    expect(await page.getByTestId('fact-eyes').count()).toBe(0)
+    await page.getByTestId('add-procedure').click()
+    const form = page.getByTestId('entry-form')
+    await form.getByLabel('Procedure', { exact: true }).fill('enucleation')
+    await form.getByTestId('data.side-left').click()
+    await form.getByLabel('Body site').fill('left eye')
+    await form.getByLabel('Outcome').fill('Socket sutured; swimming at 35 minutes')
+    expect(await form.getByTestId('with-anaesthesia').isChecked()).toBe(true)
+    await form.getByLabel('Bath concentration (mg/L)').fill('100')
+    await form.getByLabel('Water temperature (°C)').fill('18')
+    await form.getByLabel('Induction (minutes)').fill('4')
+    await form.getByLabel('Recovery (minutes)').fill('35')
+    expect(await form.getByTestId('dose-cautions').textContent()).toContain('licensed veterinarian')
+    await form.getByTestId('entry-submit').click()
+    await form.waitFor({ state: 'detached' })
+
+    await expect.poll(() => page.getByTestId('fact-eyes').textContent()).toMatch(/left eye removed \d{4}-\d{2}-\d{2} — right eye only/)
+    await expect.poll(() => page.getByTestId('entry-procedure').first().textContent()).toContain('enucleation')
+    expect(await page.getByTestId('entry-anaesthesia').first().getByTestId('prolonged-recovery').isVisible()).toBe(true)
+    await screenshots(page, 'timeline-vet-after-enucleation')
+
+    // The same eye cannot be chosen again; the server would refuse it too.
+    await page.getByTestId('add-procedure').click()
+    await form.getByLabel('Procedure', { exact: true }).fill('Enucleation')
+    expect(await form.getByTestId('data.side-left').isDisabled()).toBe(true)
+    expect(await form.getByTestId('eye-state').textContent()).toContain('left eye removed')
+    await form.getByTestId('entry-form-close').click()
+    await page.close()
+  })
+
+  it('lets a keeper add a weight and see the chart and the condition factor, and amend it', async () => {
+    const { fishId } = await demoFish(await apiAs(KEEPER), 'Garden pond', 'Pebble')
+    const page = await browser.newPage()
+    await signIn(page, KEEPER, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`)
+    await page.getByTestId('growth-chart').waitFor()
+    const before = await page.locator('[data-testid="growth-chart"] canvas').getAttribute('aria-label')
+    await page.getByTestId('add-measurement').click()
+    const form = page.getByTestId('entry-form')
+    await form.getByLabel('Weight', { exact: true }).fill('1.9')
+    await form.getByTestId('weight-unit-kg').click()
+    await form.getByLabel('Length (cm)').fill('48')
+    // 100 · 1900 / 48³ = 190000 / 110592 = 1.718 (Fulton; Nash et al. 2006).
+    await expect.poll(() => form.getByTestId('measurement-preview').textContent()).toContain('Condition factor K 1.72')
+    await form.getByTestId('entry-submit').click()
+    await form.waitFor({ state: 'detached' })
+    await expect.poll(() => page.getByTestId('fact-weight').textContent()).toContain('1.90 kg')
+    expect(await page.getByTestId('fact-condition').textContent()).toContain('K 1.72')
+    const after = await page.locator('[data-testid="growth-chart"] canvas').getAttribute('aria-label')
+    expect(Number(after!.match(/(\d+) measurements/)![1])).toBe(Number(before!.match(/(\d+) measurements/)![1]) + 1)
+    await screenshots(page, 'timeline-keeper-weight')
+
+    await page.getByTestId('entry-measurement').first().getByTestId('amend-entry').click()
+    await form.getByLabel('Length (cm)').fill('47.5')
+    await form.getByLabel('Why amend it?').fill('Measured again, tail straight')
+    await form.getByTestId('entry-submit').click()
+    await form.waitFor({ state: 'detached' })
+    const first = page.getByTestId('entry-measurement').first()
+    await first.getByTestId('amended-badge').click()
+    await expect.poll(() => first.getByTestId('revision-history').locator('li').count()).toBe(2)
+    expect(await first.getByTestId('revision-history').textContent()).toContain('Measured again, tail straight')
+    await page.close()
+  })
+
+  it('keeps what a keeper typed when the network fails, and saves it once when it is back', async () => {
+    const api = await apiAs(US_KEEPER)
+    const { fishId } = await demoFish(api, 'Courtyard pond', 'Kenzo')
+    const count = async () => {
+      const { rows } = await testDb().query(`select count(*)::int as n from timeline_entries where fish_id = $1 and kind = 'measurement'`, [fishId])
+      return rows[0].n as number
+    }
+    const before = await count()
+    const page = await browser.newPage()
+    await signIn(page, US_KEEPER, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`)
+    await page.getByTestId('add-measurement').click()
+    const form = page.getByTestId('entry-form')
+    // This person works in US units: pounds and ounces, inches.
+    await form.getByLabel('Pounds').fill('6')
+    await form.getByLabel('Ounces').fill('4')
+    await form.getByLabel('Length (in)').fill('22.5')
+    await browser.setOffline(true)
+    await form.getByTestId('entry-submit').click()
+    await expect.poll(() => form.getByRole('alert').textContent()).toContain('No connection: nothing was saved')
+    expect(await form.getByLabel('Pounds').inputValue()).toBe('6')
+    await screenshots(page, 'timeline-offline-form')
+    await browser.setOffline(false)
+    await form.getByTestId('entry-submit').click()
+    await form.waitFor({ state: 'detached' })
+    await expect.poll(() => page.getByTestId('fact-weight').textContent()).toContain('6 lb 4.0 oz')
+    const latest = (await api.get(`/api/fish/${fishId}/timeline?kind=measurement&limit=1`)).body.entries
+    // 6 lb 4 oz = 6 × 453.59237 + 4 × 28.349523125 = 2834.952 g; 22.5 in = 57.15 cm (NIST SP 811).
+    expect(latest[0].data).toMatchObject({ weightG: 2834.952, lengthCm: 57.15, entered: { weight: '6 lb 4 oz', length: '22.5 in' } })
+    expect(await count()).toBe(before + 1)
+    await page.close()
+  })
+
+  it('does not offer a keeper a procedure, and the server refuses one', async () => {
+    const { fishId } = await demoFish(await apiAs(KEEPER), 'Garden pond', 'Pilot')
+    const page = await browser.newPage()
+    await signIn(page, KEEPER, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`)
+    await page.getByTestId('quick-add').waitFor()
+    if (await page.getByTestId('more-kinds').count()) await page.getByTestId('more-kinds').click()
+    const offered = await page.getByTestId('quick-add').locator('button[data-testid^="add-"]').evaluateAll(buttons => buttons.map(b => b.getAttribute('data-testid')))
+    expect(offered.sort()).toEqual(['add-companion', 'add-measurement', 'add-observation', 'add-problem', 'add-treatment'])
+    expect(await page.getByTestId('add-problem').textContent()).toContain('Suspected problem')
+    const status = await fetchInPage(page, `/api/fish/${fishId}/timeline`, {
+      kind: 'procedure', occurredAt: new Date().toISOString().slice(0, 10), data: { name: 'fin trim', side: 'not_applicable', surgeon: 'Priya' },
+    })
+    expect(status).toBe(403)
+    expect(await page.getByTestId('fact-eyes').textContent()).toContain('left eye removed 2019-05-23')
+    expect(await page.getByTestId('fact-companions').textContent()).toContain('is guided by')
+    await screenshots(page, 'timeline-keeper-pilot')
+    await page.close()
+  })
+
+  it('shows the pond’s length–weight curve with its b, and flags the fish losing weight', async () => {
+    const page = await browser.newPage()
+    await signIn(page, KEEPER, DEMO_PASSWORD)
+    await page.getByTestId('pond-Garden pond').click()
+    await page.getByTestId('length-weight-chart').waitFor()
+    expect(await page.getByTestId('length-weight-fits').textContent()).toMatch(/Koi:.*b = \d\.\d\d/)
+    await page.getByTestId('view-table').click()
+    const saffron = page.getByTestId('fish-table').locator('tr', { hasText: 'Saffron' })
+    expect(await saffron.textContent()).toContain('losing weight')
+    await screenshots(page, 'pond-length-weight')
+    await page.close()
+  })
+})
