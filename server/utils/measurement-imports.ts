@@ -1,7 +1,7 @@
 import { createHash, randomUUID } from 'node:crypto'
 import type { H3Event } from 'h3'
 import type { PondRole } from '#shared/types'
-import { eq, inArray } from 'drizzle-orm'
+import { eq, inArray, sql } from 'drizzle-orm'
 import { cellText, importMappingSchema, indexFish, readMeasurementRow, type ImportMapping, type ImportReport, type ReadMeasurement } from '#shared/utils/measurement-import'
 import { fieldErrorsFrom } from '#shared/utils/field-errors'
 import type { Tx } from './db'
@@ -110,6 +110,8 @@ export async function runImport(event: H3Event, pondId: string, authorId: string
     // The pond row, as custody work takes it: no second import, move or handover runs in between.
     await lockPonds(tx, [pondId])
     const { report, ready } = await planImport(tx, pondId, sheet, mapping)
+    // Each fish's measurement summary is refreshed once at the end, not once per row (drizzle/0012).
+    await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'on', true)`)
     const [record] = await tx.insert(schema.measurementImports).values({
       pondId, importedById: authorId, fileName: sheet.fileName, fileSha256, mapping,
       rowCount: report.rowCount, importedCount: ready.length, problemCount: report.problems.length, skippedCount: report.skipped.length,
@@ -124,6 +126,9 @@ export async function runImport(event: H3Event, pondId: string, authorId: string
       await tx.insert(schema.timelineRevisions).values(rows.map(r => ({ entryId: r.id, revision: 1, occurredAt: r.occurredAt, data: r.data, authorId })))
       await tx.insert(schema.measurementImportRows).values(chunk.map(c => ({ importKey: c.key, importId: record!.id, entryId: c.id, rowNumber: c.row })))
     }
+    await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'off', true)`)
+    const fishIds = [...new Set(ready.map(r => r.value.fishId))]
+    if (fishIds.length) await tx.execute(sql`select fintrail_refresh_measurement_summary(id) from fish where id = any(${sql.param(fishIds)}::uuid[])`)
     await recordAudit(event, {
       pondId, action: 'measurements.imported',
       details: { importId: record!.id, fileName: sheet.fileName, sheet: sheet.sheet, rows: report.rowCount, imported: ready.length, problems: report.problems.length, skipped: report.skipped.length },

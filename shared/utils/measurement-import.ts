@@ -128,9 +128,9 @@ export function readDate(cell: Cell, format: DateFormat, today: string): { ok: t
 }
 
 const UNIT_WORDS: Record<string, string> = {
-  g: 'g', gram: 'g', grams: 'g', gr: 'g', kg: 'kg', kgs: 'kg', kilo: 'kg', kilos: 'kg', kilogram: 'kg', kilograms: 'kg',
-  lb: 'lb', lbs: 'lb', pound: 'lb', pounds: 'lb', oz: 'oz', ounce: 'oz', ounces: 'oz',
-  cm: 'cm', mm: 'mm', m: 'm', in: 'in', inch: 'in', inches: 'in', '"': 'in',
+  'g': 'g', 'gram': 'g', 'grams': 'g', 'gr': 'g', 'kg': 'kg', 'kgs': 'kg', 'kilo': 'kg', 'kilos': 'kg', 'kilogram': 'kg', 'kilograms': 'kg',
+  'lb': 'lb', 'lbs': 'lb', 'pound': 'lb', 'pounds': 'lb', 'oz': 'oz', 'ounce': 'oz', 'ounces': 'oz',
+  'cm': 'cm', 'mm': 'mm', 'm': 'm', 'in': 'in', 'inch': 'in', 'inches': 'in', '"': 'in',
 }
 
 function unitOf(word: string, allowed: readonly string[]): string | null {
@@ -226,7 +226,7 @@ export function suggestMapping(columns: string[], samples: Record<string, Cell>[
   const lengthUnitColumn = find(/length.*unit|unit.*length/i)
   const weightColumn = find(/weight|mass|\bwt\b|\bgrams?\b|\bkg\b|\blbs?\b/i, [weightUnitColumn])
   const lengthColumn = find(/length|\btl\b|\bcm\b/i, [lengthUnitColumn])
-  const dateColumn = find(/date|day|when/i)
+  const dateColumn = find(/date|day|when|measured|weighed/i, [weightColumn, lengthColumn])
   const suggestion: Partial<ImportMapping> = {
     fishColumn: name ?? chip, fishMatch: name ? 'name' : chip ? 'microchip' : undefined,
     dateColumn, weightColumn, weightUnitColumn, lengthColumn, lengthUnitColumn,

@@ -1,9 +1,9 @@
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import type { BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { openBrowser, screenshots, signIn } from '../support/browser'
+import { SCREENSHOT_DIR, openBrowser, screenshots, signIn } from '../support/browser'
 import { closeTestDb } from '../support/db'
 import { createFish, createPond, signedInUser } from '../support/factories'
 import { MAIN_URL } from '../support/env'
@@ -27,6 +27,16 @@ async function ownerWithFish(name: string) {
   const pond = await createPond(owner.client, { name: `Photo pond ${Date.now() % 100000}` })
   const fish = await createFish(owner.client, pond.id, { name })
   return { owner, pond, fish }
+}
+
+/** The large view is a modal over the viewport: a full-page capture would miss it. */
+async function viewportShots(page: Page, name: string) {
+  mkdirSync(SCREENSHOT_DIR, { recursive: true })
+  for (const [width, height] of [[390, 844], [1280, 900]] as const) {
+    await page.setViewportSize({ width, height })
+    await page.waitForTimeout(300)
+    await page.screenshot({ path: join(SCREENSHOT_DIR, `${name}-${width}.png`) })
+  }
 }
 
 async function openUploader(page: Page) {
@@ -71,7 +81,7 @@ describe('photos on a fish profile, in Chromium', () => {
     await viewer.getByLabel('Caption').fill('Tancho spot slightly left of centre')
     await viewer.getByRole('button', { name: 'Save view and caption' }).click()
     await expect.poll(async () => (await photoRows('fish_id = $1', [fish.id]))[0]!.caption).toBe('Tancho spot slightly left of centre')
-    await screenshots(page, 'fish-photo-viewer')
+    await viewportShots(page, 'fish-photo-viewer')
     await viewer.getByTestId('photo-viewer-close').click()
 
     // Two more, from a keeper's phone at other times, for the gallery as it usually looks.
@@ -81,8 +91,9 @@ describe('photos on a fish profile, in Chromium', () => {
     }
     await page.reload()
     await expect.poll(() => page.locator('[data-testid^="photo-"][data-state="ready"]').count()).toBe(3)
+    // Thumbnails load lazily, once the gallery is on screen.
+    await page.getByTestId('photo-grid').scrollIntoViewIfNeeded()
     await expect.poll(() => page.locator('[data-testid="photo-thumb"]').evaluateAll(imgs => imgs.every(img => (img as HTMLImageElement).complete && (img as HTMLImageElement).naturalWidth > 0))).toBe(true)
-    await page.getByTestId('photo-gallery').scrollIntoViewIfNeeded()
     await screenshots(page, 'fish-photos')
 
     await page.goto(`/ponds/${pond.id}`)
