@@ -1,10 +1,12 @@
 import { mkdir } from 'node:fs/promises'
 import { join } from 'node:path'
 import exifr from 'exifr'
-import sharp from 'sharp'
-import { DERIVED_SIZES, MAX_INPUT_PIXELS } from '#shared/utils/photo-limits'
+import sharp, { type Metadata, type OutputInfo } from 'sharp'
+import { DERIVED_SIZES, MAX_INPUT_PIXELS } from '../../shared/utils/photo-limits'
 import type { PhotoVariant } from '../db/schema/photos'
 import { PhotoRejection, tooManyPixels } from './photo-files'
+
+// Explicit relative imports only (no Nitro auto-imports): scripts/bench/photos.ts times this very code.
 
 // libvips works in libuv's thread pool, off the event loop. One thread per image, with the cap on
 // photos processed at once (photo-pipeline.ts), keeps the pool (4 threads, shared with password
@@ -40,7 +42,7 @@ function parseExifDate(value: unknown): Date | null {
 
 /** Reads the header only (no pixels are decoded), so a decompression bomb is refused here, before any decode. */
 export async function readPhotoHeader(path: string): Promise<PhotoHeader> {
-  let metadata: sharp.Metadata
+  let metadata: Metadata
   try {
     metadata = await sharp(path, { limitInputPixels: false }).metadata()
   }
@@ -77,7 +79,7 @@ function decodeRejection(error: unknown): PhotoRejection | null {
  * dates and the ICC profile (converted to sRGB first) stay behind in the original.
  */
 export async function makeDerived(originalPath: string, outDir: string): Promise<PhotoVariant[]> {
-  let decoded: { data: Buffer, info: sharp.OutputInfo }
+  let decoded: { data: Buffer, info: OutputInfo }
   try {
     decoded = await sharp(originalPath, { limitInputPixels: MAX_INPUT_PIXELS, failOn: 'error' })
       .rotate()

@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto'
 import { createReadStream } from 'node:fs'
 import { open } from 'node:fs/promises'
 import { fileTypeFromFile } from 'file-type'
-import { ACCEPTED_TYPES, MAX_INPUT_PIXELS, type AcceptedType } from '#shared/utils/photo-limits'
+import { ACCEPTED_TYPES, MAX_INPUT_PIXELS, type AcceptedType } from '../../shared/utils/photo-limits'
 
 /** The file itself is unusable: the client gets this status and message, and nothing of it is kept. */
 export class PhotoRejection extends Error {

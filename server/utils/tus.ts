@@ -99,7 +99,7 @@ export function useTusServer(): Server {
       return { metadata: { ...parsed.data, uploaderId: user.id } }
     }),
 
-    onUploadFinish: (_req, upload) => guard(async () => {
+    onUploadFinish: (_req, upload) => guard(async (): Promise<{ headers: Record<string, string> }> => {
       const outcome = await finishUpload(upload.id, { size: upload.size ?? 0, metadata: upload.metadata ?? {} })
       if (outcome === 'busy') return { headers: { 'Photo-State': 'pending' } }
       return { headers: { 'Photo-Id': outcome.photo.id, 'Photo-State': outcome.photo.state, 'Photo-Duplicate': outcome.duplicate ? 'yes' : 'no' } }

@@ -58,9 +58,10 @@ export interface ReadMeasurement {
   entered?: { weight?: string, length?: string }
 }
 
-export type RowResult = { ok: true, value: ReadMeasurement } | { ok: false, reason: ImportProblem, message: string }
+export interface RowRefusal { ok: false, reason: ImportProblem, message: string }
+export type RowResult = { ok: true, value: ReadMeasurement } | RowRefusal
 
-const fail = (reason: ImportProblem, message: string): RowResult => ({ ok: false, reason, message })
+const fail = (reason: ImportProblem, message: string): RowRefusal => ({ ok: false, reason, message })
 
 export function cellText(cell: Cell): string {
   if (cell == null) return ''
@@ -86,7 +87,7 @@ export function indexFish(fish: FishForImport[]) {
 
 export type FishIndex = ReturnType<typeof indexFish>
 
-function findFish(text: string, match: ImportMapping['fishMatch'], index: FishIndex): FishForImport | RowResult {
+function findFish(text: string, match: ImportMapping['fishMatch'], index: FishIndex): FishForImport | RowRefusal {
   if (!text) return fail('unknown_fish', 'No fish named in this row')
   if (match === 'microchip') {
     const digits = text.replace(/[\s-]/g, '')
@@ -150,7 +151,7 @@ function readNumber(text: string, decimal: '.' | ','): number | null {
  * "3 lb 4 oz". The unit comes from the cell, else the unit column, else the fixed unit; a cell's unit
  * that contradicts the unit column is refused rather than one of them believed.
  */
-export function readAmount(cell: Cell, options: { base: 'g' | 'cm', allowed: readonly string[], fixedUnit?: string, unitCell?: Cell, decimal: '.' | ',' }): { ok: true, value: number | undefined, entered?: string } | RowResult {
+export function readAmount(cell: Cell, options: { base: 'g' | 'cm', allowed: readonly string[], fixedUnit?: string, unitCell?: Cell, decimal: '.' | ',' }): { ok: true, value: number | undefined, entered?: string } | RowRefusal {
   if (typeof cell === 'number') cell = String(cell).replace('.', options.decimal)
   const text = cellText(cell)
   if (!text) return { ok: true, value: undefined }
@@ -195,11 +196,11 @@ export function readMeasurementRow(cells: Record<string, Cell>, mapping: ImportM
   if (!date.ok) return fail('bad_date', date.message)
   const weight = mapping.weightColumn
     ? readAmount(cells[mapping.weightColumn], { base: 'g', allowed: WEIGHT_UNITS, fixedUnit: mapping.weightUnit, unitCell: mapping.weightUnitColumn ? cells[mapping.weightUnitColumn] : undefined, decimal: mapping.decimalSeparator })
-    : { ok: true as const, value: undefined }
+    : { ok: true as const, value: undefined, entered: undefined }
   if (!weight.ok) return weight
   const length = mapping.lengthColumn
     ? readAmount(cells[mapping.lengthColumn], { base: 'cm', allowed: LENGTH_UNITS, fixedUnit: mapping.lengthUnit, unitCell: mapping.lengthUnitColumn ? cells[mapping.lengthUnitColumn] : undefined, decimal: mapping.decimalSeparator })
-    : { ok: true as const, value: undefined }
+    : { ok: true as const, value: undefined, entered: undefined }
   if (!length.ok) return length
   if (weight.value === undefined && length.value === undefined) return fail('no_measurement', 'Neither a weight nor a length in this row')
   const value: ReadMeasurement = {
@@ -211,8 +212,8 @@ export function readMeasurementRow(cells: Record<string, Cell>, mapping: ImportM
   const checked = measurementData.safeParse({ weightG: value.weightG, lengthCm: value.lengthCm, lengthType: value.lengthType })
   if (!checked.success) return fail('out_of_range', checked.error.issues[0]!.message)
   const entered = {
-    ...('entered' in weight && weight.entered ? { weight: weight.entered } : {}),
-    ...('entered' in length && length.entered ? { length: length.entered } : {}),
+    ...(weight.entered ? { weight: weight.entered } : {}),
+    ...(length.entered ? { length: length.entered } : {}),
   }
   return { ok: true, value: Object.keys(entered).length ? { ...value, entered } : value }
 }

@@ -22,7 +22,7 @@ describe('session cookie flags', () => {
     expect(cookie).not.toMatch(/;\s*Secure/i)
   })
 
-  it('is Secure by default when the configured origin is https, and plain by default for an http origin', async () => {
+  it('is Secure unless NUXT_SESSION_COOKIE_SECURE=false says otherwise (npm start says so for its http origin)', async () => {
     const https = await startServer(MAIN_PORT + 19, { NUXT_APP_ORIGIN: 'https://fintrail.example', NUXT_SESSION_COOKIE_SECURE: null })
     try {
       expect(await signUpCookie(https.url, 'https://fintrail.example')).toMatch(/;\s*Secure/i)
@@ -30,12 +30,12 @@ describe('session cookie flags', () => {
     finally {
       await https.stop()
     }
-    const http = await startServer(MAIN_PORT + 19, { NUXT_SESSION_COOKIE_SECURE: null })
+    const configured = await startServer(MAIN_PORT + 19, { NUXT_APP_ORIGIN: 'https://fintrail.example', NUXT_SESSION_COOKIE_SECURE: 'false' })
     try {
-      expect(await signUpCookie(http.url)).not.toMatch(/;\s*Secure/i)
+      expect(await signUpCookie(configured.url, 'https://fintrail.example')).not.toMatch(/;\s*Secure/i)
     }
     finally {
-      await http.stop()
+      await configured.stop()
     }
   })
 })

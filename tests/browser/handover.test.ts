@@ -54,6 +54,8 @@ describe('handing a pond over in Chromium', () => {
     await page.waitForURL(url => url.pathname === link.pathname)
     await screenshots(page, 'handover-accept')
     await page.getByTestId('accept-handover').click()
+    await page.waitForTimeout(4000)
+    console.log('URL after accept', page.url(), await page.locator('body').innerText())
     await page.waitForURL(url => url.pathname === `/ponds/${pond.id}`)
     await page.getByTestId(`fish-card-${fish.name}`).waitFor()
 

@@ -3,9 +3,9 @@ import { fultonK, weightChangeAlert } from '#shared/utils/condition'
 import type { FishGrowth, GrowthMarker } from '#shared/types/timeline'
 import { growthSql, type GrowthRow } from '../../../db/queries/timeline'
 
-function markerLabel(kind: 'procedure' | 'treatment' | 'death', data: Record<string, unknown>) {
-  if (kind === 'procedure') return [data.name, data.side && data.side !== 'not_applicable' ? `(${data.side})` : ''].filter(Boolean).join(' ')
-  if (kind === 'treatment') return `${data.drug} (${String(data.route).replace('_', ' ')})`
+function markerLabel(e: GrowthRow['events'][number]) {
+  if (e.kind === 'procedure') return [e.name, e.side && e.side !== 'not_applicable' ? `(${e.side})` : ''].filter(Boolean).join(' ')
+  if (e.kind === 'treatment') return `${e.drug} (${String(e.route).replace('_', ' ')})`
   return 'Died'
 }
 
@@ -19,7 +19,7 @@ export default defineEventHandler(async (event): Promise<FishGrowth> => {
     lengthType: p.lengthType ?? 'total', conditionK: p.weightG != null && p.lengthCm != null ? fultonK(p.weightG, p.lengthCm) : null,
   }))
   const markers: GrowthMarker[] = [
-    ...g.events.map(e => ({ entryId: e.entryId, at: new Date(e.at).toISOString(), kind: e.kind, label: markerLabel(e.kind, e.data) })),
+    ...g.events.map(e => ({ entryId: e.entryId, at: new Date(e.at).toISOString(), kind: e.kind, label: markerLabel(e) })),
     ...g.companion_deaths.map(d => ({ entryId: d.entryId, at: new Date(d.at).toISOString(), kind: 'companion_death' as const, label: `${d.fishName} died` })),
   ].sort((a, b) => a.at.localeCompare(b.at))
   const weights = points.filter(p => p.weightG != null).map(p => ({ date: p.at, weightG: p.weightG! }))

@@ -1,0 +1,248 @@
+// Photos: (1) derived sizes of a 12-megapixel JPEG with our sharp code against ImageMagick's convert,
+// (2) tus upload throughput on loopback against a plain copy of the same bytes, (3) the health route's
+// latency while ten photos are processed by the built server.
+// Run: bash scripts/bench/run.sh photos (or with DATABASE_URL of a migrated scratch database,
+// BENCH_STORAGE_DIR and NUXT_SESSION_PASSWORD set).
+import { execFileSync, spawn, spawnSync } from 'node:child_process'
+import { randomBytes } from 'node:crypto'
+import { createWriteStream, existsSync, mkdirSync, rmSync, statSync, writeFileSync } from 'node:fs'
+import { copyFile } from 'node:fs/promises'
+import { createServer } from 'node:http'
+import { join } from 'node:path'
+import { pipeline } from 'node:stream/promises'
+import { Hash } from '@adonisjs/hash'
+import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
+import { FileStore } from '@tus/file-store'
+import { Server as TusServer } from '@tus/server'
+import pg from 'pg'
+import sharp from 'sharp'
+import * as tus from 'tus-js-client'
+import { UPLOAD_CHUNK_BYTES } from '../../shared/utils/photo-limits'
+import { makeDerived } from '../../server/utils/photo-derive'
+import { BENCH_PASSWORD, signInCookie, startBenchServer } from './support'
+
+const CONVERT = '/usr/bin/convert'
+const PORT = Number(process.env.BENCH_PORT ?? 3520)
+const RUNS = Number(process.env.BENCH_RUNS ?? 5)
+const WORK = join(process.env.BENCH_STORAGE_DIR ?? join(import.meta.dirname, '../../storage/bench'), 'photo-bench')
+const pool = new pg.Pool({ connectionString: process.env.DATABASE_URL, max: 2 })
+
+const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)]!
+const percentile = (values: number[], p: number) => [...values].sort((a, b) => a - b)[Math.min(values.length - 1, Math.ceil(values.length * p) - 1)]!
+const ms = (value: number) => `${value.toFixed(0)} ms`
+
+/** Debian's ImageMagick (the one at /usr/bin, not a wrapper earlier on PATH); installed when missing. */
+function ensureConvert() {
+  if (existsSync(CONVERT)) return
+  if (process.getuid?.() !== 0) throw new Error(`${CONVERT} is missing: run "apt-get install -y imagemagick" as root`)
+  console.log('Installing Debian\'s imagemagick package ...')
+  execFileSync('apt-get', ['update'], { stdio: 'inherit' })
+  execFileSync('apt-get', ['install', '-y', '--no-install-recommends', 'imagemagick'], { stdio: 'inherit', env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' } })
+}
+
+/** A 4000 x 3000 JPEG with photo-like fine texture (blurred noise), 4-6 MB like a phone's. */
+async function twelveMegapixelJpeg(seed: number) {
+  const noise = await sharp({ create: { width: 4000, height: 3000, channels: 3, background: { r: 40 + seed % 40, g: 100, b: 110 }, noise: { type: 'gaussian', mean: 120, sigma: 60 } } })
+    .blur(1.2).raw().toBuffer()
+  return sharp(noise, { raw: { width: 4000, height: 3000, channels: 3 } }).jpeg({ quality: 90 }).toBuffer()
+}
+
+/** The same work in one convert process: decode once, orient, strip, then 2048, 1024 and 320 as WebP and JPEG. */
+function convertArgs(input: string, out: string) {
+  const sizes = [2048, 1024, 320]
+  const args = [input, '-auto-orient', '-strip', '-colorspace', 'sRGB']
+  for (const size of sizes) {
+    args.push('-resize', `${size}x${size}>`)
+    args.push('(', '+clone', '-quality', '80', '-write', join(out, `${size}.webp`), '+delete', ')')
+    args.push('(', '+clone', '-interlace', 'JPEG', '-quality', '82', '-write', join(out, `${size}.jpg`), '+delete', ')')
+  }
+  args.push('null:')
+  return args
+}
+
+function timeConvert(input: string, out: string, threads: string | null) {
+  const env = { ...process.env, ...(threads ? { MAGICK_THREAD_LIMIT: threads } : {}) }
+  const started = performance.now()
+  const result = spawnSync(CONVERT, convertArgs(input, out), { env })
+  if (result.status !== 0) throw new Error(`convert failed: ${result.stderr}`)
+  return performance.now() - started
+}
+
+async function derivedSizes() {
+  ensureConvert()
+  const input = join(WORK, 'twelve-megapixel.jpg')
+  writeFileSync(input, await twelveMegapixelJpeg(1))
+  const out = join(WORK, 'derived')
+  const sharpTimes: number[] = []
+  const convertOne: number[] = []
+  const convertAll: number[] = []
+  // One warm-up each, then alternate so both see the same machine.
+  for (let run = 0; run <= RUNS; run++) {
+    rmSync(out, { recursive: true, force: true })
+    const started = performance.now()
+    await makeDerived(input, out)
+    if (run) sharpTimes.push(performance.now() - started)
+    rmSync(out, { recursive: true, force: true })
+    mkdirSync(out, { recursive: true })
+    const one = timeConvert(input, out, '1')
+    const all = timeConvert(input, out, null)
+    if (run) {
+      convertOne.push(one)
+      convertAll.push(all)
+    }
+  }
+  const version = execFileSync(CONVERT, ['-version'], { encoding: 'utf8' }).split('\n')[0]
+  console.log(`\n1. Derived sizes of one 12-megapixel JPEG (${(statSync(input).size / 1e6).toFixed(1)} MB), 320/1024/2048 px as WebP + JPEG, median of ${RUNS}:`)
+  console.log(`   sharp ${sharp.versions.sharp} (libvips ${sharp.versions.vips}), 1 thread as the server runs it: ${ms(median(sharpTimes))}`)
+  console.log(`   ${version.replace('Version: ', '')} at ${CONVERT}, 1 thread: ${ms(median(convertOne))}; all cores (OpenMP): ${ms(median(convertAll))}`)
+  console.log(`   ratio convert / sharp, 1 thread each: ${(median(convertOne) / median(sharpTimes)).toFixed(1)}x (all-core convert: ${(median(convertAll) / median(sharpTimes)).toFixed(1)}x)`)
+}
+
+function tusSend(endpoint: string, bytes: Buffer, headers: Record<string, string>, metadata: Record<string, string>, chunkSize = UPLOAD_CHUNK_BYTES) {
+  return new Promise<{ status: number, elapsed: number }>((resolve, reject) => {
+    const started = performance.now()
+    const upload = new tus.Upload(bytes, {
+      endpoint, chunkSize, metadata, headers, retryDelays: [], storeFingerprintForResuming: false,
+      onSuccess: ({ lastResponse }) => resolve({ status: lastResponse.getStatus(), elapsed: performance.now() - started }),
+      onError: (error) => {
+        const status = (error as tus.DetailedError).originalResponse?.getStatus()
+        // Our route refuses non-photo bytes after the last byte arrived: the upload itself completed.
+        if (status === 415) resolve({ status, elapsed: performance.now() - started })
+        else reject(error)
+      },
+    })
+    upload.start()
+  })
+}
+
+/** A minimal HTTP server that writes a PUT body to a file: the floor for "bytes over loopback onto disk". */
+async function plainPutServer(dir: string) {
+  const server = createServer(async (req, res) => {
+    await pipeline(req, createWriteStream(join(dir, `put-${randomBytes(4).toString('hex')}`)))
+    res.writeHead(204).end()
+  })
+  await new Promise<void>(done => server.listen(0, '127.0.0.1', done))
+  return { url: `http://127.0.0.1:${(server.address() as { port: number }).port}`, close: () => server.close() }
+}
+
+async function throughput(app: { url: string }, cookie: string, fishId: string) {
+  const dir = join(WORK, 'throughput')
+  mkdirSync(dir, { recursive: true })
+  const hundred = randomBytes(100 * 1024 * 1024)
+  const source = join(dir, 'source.bin')
+  writeFileSync(source, hundred)
+  const mbps = (bytes: number, elapsed: number) => bytes / 1e6 / (elapsed / 1000)
+
+  const copies: number[] = []
+  for (let i = 0; i < 3; i++) {
+    const started = performance.now()
+    await copyFile(source, join(dir, `copy-${i}.bin`))
+    copies.push(performance.now() - started)
+  }
+  const put = await plainPutServer(dir)
+  const puts: number[] = []
+  for (let i = 0; i < 3; i++) {
+    const started = performance.now()
+    const curl = spawnSync('curl', ['-s', '-o', '/dev/null', '-w', '%{http_code}', '-T', source, `${put.url}/upload`], { encoding: 'utf8' })
+    if (curl.stdout !== '204') throw new Error(`curl PUT answered ${curl.stdout} ${curl.stderr}`)
+    puts.push(performance.now() - started)
+  }
+  put.close()
+
+  // @tus/server with @tus/file-store, as our route uses them, without Nitro and our hooks (100 MB is over our 40 MB limit).
+  const store = new FileStore({ directory: join(dir, 'tus') })
+  const tusServer = new TusServer({ path: '/files', datastore: store })
+  const plainTus = createServer((req, res) => tusServer.handle(req, res))
+  await new Promise<void>(done => plainTus.listen(0, '127.0.0.1', done))
+  const tusUrl = `http://127.0.0.1:${(plainTus.address() as { port: number }).port}/files`
+  const tusTimes: number[] = []
+  for (let i = 0; i < 3; i++) tusTimes.push((await tusSend(tusUrl, hundred, {}, { filename: 'big.bin' })).elapsed)
+  plainTus.close()
+
+  // Through the app's own route, hooks included, at its 40 MB maximum.
+  const forty = hundred.subarray(0, 40 * 1024 * 1024)
+  const appTimes: number[] = []
+  for (let i = 0; i < 3; i++) appTimes.push((await tusSend(`${app.url}/api/uploads`, forty, { cookie }, { fishId, filename: 'big.bin' })).elapsed)
+
+  const copyRate = mbps(hundred.length, median(copies))
+  const putRate = mbps(hundred.length, median(puts))
+  const tusRate = mbps(hundred.length, median(tusTimes))
+  const appRate = mbps(forty.length, median(appTimes))
+  console.log(`\n2. Upload throughput on loopback, median of 3 (tus in ${UPLOAD_CHUNK_BYTES / 1024 / 1024} MB chunks, as Uppy sends):`)
+  console.log(`   cp of 100 MB: ${copyRate.toFixed(0)} MB/s; curl PUT of 100 MB to a minimal server: ${putRate.toFixed(0)} MB/s`)
+  console.log(`   tus (@tus/server + file-store) of 100 MB: ${tusRate.toFixed(0)} MB/s = ${(tusRate / putRate).toFixed(2)} of curl PUT, ${(tusRate / copyRate).toFixed(2)} of cp`)
+  console.log(`   our /api/uploads route (session, membership, hooks) of 40 MB: ${appRate.toFixed(0)} MB/s = ${(appRate / putRate).toFixed(2)} of curl PUT`)
+  rmSync(dir, { recursive: true, force: true })
+}
+
+/** Polls the health route from a separate process, so the client's own work does not skew the timing. */
+function startHealthProbe(url: string) {
+  const child = spawn(process.execPath, ['-e', `
+    const times = []; let stop = false
+    process.stdin.on('data', () => { stop = true })
+    ;(async () => {
+      while (!stop) {
+        const t = performance.now()
+        await fetch(${JSON.stringify(`${url}/api/health`)}).then(r => r.text())
+        times.push(performance.now() - t)
+        await new Promise(r => setTimeout(r, 5))
+      }
+      process.stdout.write(JSON.stringify(times))
+    })()
+  `], { stdio: ['pipe', 'pipe', 'inherit'] })
+  let output = ''
+  child.stdout.on('data', (d: Buffer) => (output += d.toString()))
+  return {
+    stop: () => new Promise<number[]>((resolve) => {
+      child.once('exit', () => resolve(JSON.parse(output) as number[]))
+      child.stdin.end('stop')
+    }),
+  }
+}
+
+async function latencyWhileProcessing(app: { url: string }, cookie: string, fishId: string) {
+  const photos = await Promise.all(Array.from({ length: 10 }, (_, i) => twelveMegapixelJpeg(i + 10)))
+  const idleProbe = startHealthProbe(app.url)
+  await new Promise(r => setTimeout(r, 2000))
+  const idle = await idleProbe.stop()
+  const probe = startHealthProbe(app.url)
+  const started = performance.now()
+  const results = await Promise.all(photos.map((bytes, i) => tusSend(`${app.url}/api/uploads`, bytes, { cookie }, { fishId, filename: `pond-${i}.jpg` })))
+  const elapsed = performance.now() - started
+  const busy = await probe.stop()
+  const { rows } = await pool.query<{ n: number }>('select count(*)::int as n from photos where fish_id = $1 and state = \'ready\'', [fishId])
+  if (rows[0]!.n !== 10 || results.some(r => r.status !== 204)) throw new Error(`expected 10 ready photos, got ${rows[0]!.n}`)
+  console.log(`\n3. Health route while 10 photos of 12 megapixels are uploaded and processed (${(elapsed / 1000).toFixed(1)} s for all, ${busy.length} probes):`)
+  console.log(`   idle: p50 ${percentile(idle, 0.5).toFixed(1)} ms, p99 ${percentile(idle, 0.99).toFixed(1)} ms`)
+  console.log(`   busy: p50 ${percentile(busy, 0.5).toFixed(1)} ms, p99 ${percentile(busy, 0.99).toFixed(1)} ms, max ${Math.max(...busy).toFixed(1)} ms (target: p99 under 100 ms)`)
+}
+
+async function seed() {
+  const hash = await new Hash(new Scrypt({})).make(BENCH_PASSWORD)
+  const { rows: [user] } = await pool.query('insert into users (name, email, password_hash) values (\'Photo Bench\', \'photo-bench@example.com\', $1) returning id', [hash])
+  const { rows: [pond] } = await pool.query('insert into ponds (name) values (\'Photo bench pond\') returning id')
+  await pool.query('insert into memberships (pond_id, user_id, role) values ($1, $2, \'owner\')', [pond.id, user.id])
+  const { rows: [fish] } = await pool.query('insert into fish (pond_id, name, species, scientific_name) values ($1, \'Bench koi\', \'koi\', \'Cyprinus carpio\') returning id', [pond.id])
+  return fish.id as string
+}
+
+async function main() {
+  rmSync(WORK, { recursive: true, force: true })
+  mkdirSync(WORK, { recursive: true })
+  console.log(`Photo benchmarks on ${(await import('node:os')).cpus().length} cores, Node ${process.version}`)
+  await derivedSizes()
+  const fishId = await seed()
+  const app = await startBenchServer(PORT)
+  try {
+    const cookie = await signInCookie(app.url, 'photo-bench@example.com')
+    await throughput(app, cookie, fishId)
+    await latencyWhileProcessing(app, cookie, fishId)
+  }
+  finally {
+    app.stop()
+    await pool.end()
+    rmSync(WORK, { recursive: true, force: true })
+  }
+}
+
+await main()
