@@ -143,8 +143,14 @@ async function throughput(app: { url: string }, cookie: string, fishId: string) 
   const puts: number[] = []
   for (let i = 0; i < 3; i++) {
     const started = performance.now()
-    const curl = spawnSync('curl', ['-s', '-o', '/dev/null', '-w', '%{http_code}', '-T', source, `${put.url}/upload`], { encoding: 'utf8' })
-    if (curl.stdout !== '204') throw new Error(`curl PUT answered ${curl.stdout} ${curl.stderr}`)
+    // Not spawnSync: the receiving server lives in this very process and must keep running.
+    const code = await new Promise<string>((resolve) => {
+      const curl = spawn('curl', ['-s', '-o', '/dev/null', '-w', '%{http_code}', '-T', source, `${put.url}/upload`])
+      let out = ''
+      curl.stdout.on('data', (d: Buffer) => (out += d.toString()))
+      curl.on('exit', () => resolve(out))
+    })
+    if (code !== '204') throw new Error(`curl PUT answered ${code}`)
     puts.push(performance.now() - started)
   }
   put.close()

@@ -122,6 +122,21 @@ describe('handing a pond over to a new owner', () => {
     expect((await owner.client.post(`/api/fish/${fish.id}/timeline`, { kind: 'observation', occurredAt: day(1), data: { text: 'Me too?' } })).status).toBe(403)
   })
 
+  it('replacing a keeper: the new keeper sees the history from the first day, the old one nothing', async () => {
+    const { owner, keeper, pond, fish } = await pondWithHistory()
+    const firstDay = (await timelineOf(owner.client, fish.id)).map(e => e.id)
+    expect((await owner.client.delete(`/api/ponds/${pond.id}/members/${keeper.user.id}`)).status).toBe(200)
+    const next = await signedInUser({ name: 'Next Keeper' })
+    await addMember(pond.id, next.user.id, 'keeper')
+    expect((await keeper.client.get(`/api/fish/${fish.id}`)).status).toBe(404)
+    expect((await timelineOf(next.client, fish.id)).map(e => e.id)).toEqual(firstDay)
+    // A read-only member made owner is an ordinary owner again: owners are never read-only.
+    await testDb().query('update memberships set read_only = true where pond_id = $1 and user_id = $2', [pond.id, next.user.id])
+    expect((await owner.client.patch(`/api/ponds/${pond.id}/members/${next.user.id}`, { role: 'owner' })).status).toBe(200)
+    expect(await membershipOf(pond.id, next.user.id)).toEqual({ role: 'owner', read_only: false })
+    expect((await owner.client.patch(`/api/ponds/${pond.id}/members/${next.user.id}/read-only`, { readOnly: true })).status).toBe(409)
+  })
+
   it('with "leave", every old member loses the pond at once', async () => {
     const { owner, keeper, vet, pond, fish } = await pondWithHistory()
     const heirEmail = uniqueEmail('heir')

@@ -52,10 +52,9 @@ describe('handing a pond over in Chromium', () => {
     await page.getByLabel('Password').fill(TEST_PASSWORD)
     await page.getByTestId('sign-up-submit').click()
     await page.waitForURL(url => url.pathname === link.pathname)
+    await page.waitForLoadState('networkidle')
     await screenshots(page, 'handover-accept')
     await page.getByTestId('accept-handover').click()
-    await page.waitForTimeout(4000)
-    console.log('URL after accept', page.url(), await page.locator('body').innerText())
     await page.waitForURL(url => url.pathname === `/ponds/${pond.id}`)
     await page.getByTestId(`fish-card-${fish.name}`).waitFor()
 

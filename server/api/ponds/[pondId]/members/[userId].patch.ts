@@ -14,7 +14,8 @@ export default defineEventHandler(async (event) => {
   if (member.role === 'owner' && role !== 'owner' && await ownerCount(pondId) <= 1) {
     throw createError({ statusCode: 409, statusMessage: 'A pond needs an owner', message: 'This is the last owner of the pond: make someone else owner first.' })
   }
-  await useDb().update(schema.memberships).set({ role, updatedAt: new Date() }).where(where)
+  // Owners are never read-only: making someone owner gives them back the right to change things.
+  await useDb().update(schema.memberships).set({ role, ...(role === 'owner' ? { readOnly: false } : {}), updatedAt: new Date() }).where(where)
   await recordAudit(event, { pondId, action: 'member.role_changed', details: { userId, from: member.role, to: role } })
   return { userId, role }
 })
