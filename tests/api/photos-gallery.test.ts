@@ -134,6 +134,18 @@ describe('removing and restoring', () => {
     expect((await gallery('vet', fish.id)).body.photos.map((p: { id: string }) => p.id).sort()).toEqual([top.id, side.id].sort())
   })
 
+  it('refuses to restore a photo whose bytes were uploaded again meanwhile', async () => {
+    const first = await addPhoto()
+    await client('owner').post(`/api/photos/${first.id}/remove`)
+    // Removed photos do not count as the same photo: the same bytes make a new one.
+    const again = await addPhoto({ bytes: first.bytes })
+    expect(again.duplicate).toBe('no')
+    expect(again.id).not.toBe(first.id)
+    const restore = await client('owner').post(`/api/photos/${first.id}/restore`)
+    expect(restore.status).toBe(409)
+    expect(restore.body.message).toMatch(/in the gallery already/)
+  })
+
   it('cannot restore after 30 days', async () => {
     const photo = await addPhoto()
     await client('owner').post(`/api/photos/${photo.id}/remove`)

@@ -60,6 +60,12 @@ describe('photos on a fish profile, in Chromium', () => {
     await page.getByTestId('photo-gallery').waitFor()
     await openUploader(page)
     await addFiles(page, [path])
+    await page.locator('.uppy-Dashboard-Item').waitFor()
+    for (const width of [390, 1280]) {
+      await page.setViewportSize({ width, height: 900 })
+      await page.waitForTimeout(200)
+      await page.getByTestId('photo-uploader').screenshot({ path: join(SCREENSHOT_DIR, `fish-photo-uploader-${width}.png`) })
+    }
     await page.locator('.uppy-StatusBar-actionBtn--upload').click()
     await page.locator('.uppy-StatusBar.is-complete').waitFor({ timeout: 30_000 })
     const tile = page.locator('[data-testid^="photo-"][data-state="ready"]').first()
