@@ -40,12 +40,13 @@ export async function requirePondRole(event: H3Event, pondId: string, roles: rea
   if (!membership) throw notFound('Pond')
   if (!roles.includes(membership.role)) throw forbidden(roles)
   refuseReadOnlyWrite(event, membership.readOnly)
-  return { user, role: membership.role as PondRole }
+  return { user, role: membership.role as PondRole, readOnly: membership.readOnly }
 }
 
 export interface FishAccess {
   user: CurrentUser
   role: PondRole
+  readOnly: boolean
   fish: typeof schema.fish.$inferSelect
 }
 
@@ -60,5 +61,5 @@ export async function requireFishRole(event: H3Event, fishId: string, roles: rea
   if (!row) throw notFound('Fish')
   if (!roles.includes(row.role)) throw forbidden(roles)
   refuseReadOnlyWrite(event, row.readOnly)
-  return { user, role: row.role as PondRole, fish: row.fish }
+  return { user, role: row.role as PondRole, readOnly: row.readOnly, fish: row.fish }
 }

@@ -5,9 +5,9 @@ import { fultonK } from '#shared/utils/condition'
 
 type FishRow = typeof schema.fish.$inferSelect
 
-export function toFishProfile(fish: FishRow, role: PondRole, pondName: string): FishProfile {
+export function toFishProfile(fish: FishRow, role: PondRole, pondName: string, readOnly = false): FishProfile {
   return {
-    id: fish.id, pondId: fish.pondId, pondName, role,
+    id: fish.id, pondId: fish.pondId, pondName, role, readOnly,
     name: fish.name, species: fish.species, scientificName: fish.scientificName, variety: fish.variety, sex: fish.sex,
     hatchYear: fish.hatchYear, hatchYearEstimated: fish.hatchYearEstimated, ageYears: ageInYears(fish.hatchYear),
     acquiredOn: fish.acquiredOn, acquiredFrom: fish.acquiredFrom, microchip: fish.microchip, features: fish.features,

@@ -14,13 +14,13 @@ export async function listPondsOf(userId: string) {
     .orderBy(schema.ponds.name)
 }
 
-export async function pondDetail(pondId: string, role: PondRole): Promise<PondDetail> {
+export async function pondDetail(pondId: string, role: PondRole, readOnly = false): Promise<PondDetail> {
   const [pond] = await useDb().select({
     id: schema.ponds.id, name: schema.ponds.name, volumeLitres: schema.ponds.volumeLitres, notes: schema.ponds.notes,
     createdAt: schema.ponds.createdAt, updatedAt: schema.ponds.updatedAt, fishCount: aliveFishCount,
   }).from(schema.ponds).where(eq(schema.ponds.id, pondId))
   if (!pond) throw createError({ statusCode: 404, statusMessage: 'Pond not found' })
-  return { ...pond, role, createdAt: pond.createdAt.toISOString(), updatedAt: pond.updatedAt.toISOString() }
+  return { ...pond, role, readOnly, createdAt: pond.createdAt.toISOString(), updatedAt: pond.updatedAt.toISOString() }
 }
 
 export async function ownerCount(pondId: string) {

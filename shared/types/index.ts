@@ -32,6 +32,8 @@ export interface PondDetail {
   volumeLitres: number | null
   notes: string
   role: PondRole
+  /** Kept on after a handover to look, not to change: the client hides what the server would refuse. */
+  readOnly: boolean
   fishCount: number
   createdAt: string
   updatedAt: string
@@ -61,6 +63,7 @@ export interface FishProfile {
   pondId: string
   pondName: string
   role: PondRole
+  readOnly: boolean
   name: string
   species: FishSpecies
   scientificName: string

@@ -100,7 +100,12 @@ describe('handing a pond over to a new owner', () => {
     expect(await membershipOf(pond.id, keeper.user.id)).toEqual({ role: 'keeper', read_only: true })
     expect(await membershipOf(pond.id, vet.user.id)).toEqual({ role: 'vet', read_only: true })
     for (const person of [owner, keeper, vet]) {
-      expect((await person.client.get(`/api/fish/${fish.id}`)).status).toBe(200)
+      const profile = await person.client.get(`/api/fish/${fish.id}`)
+      expect(profile.status).toBe(200)
+      // The client is told, so it offers no button the server would refuse.
+      expect(profile.body.readOnly).toBe(true)
+      expect((await person.client.get(`/api/ponds/${pond.id}`)).body.readOnly).toBe(true)
+      expect((await person.client.get(`/api/fish/${fish.id}/photos`)).body.canUpload).toBe(false)
       expect((await person.client.get(`/api/fish/${fish.id}/timeline`)).status).toBe(200)
       const write = await person.client.post(`/api/fish/${fish.id}/timeline`, { kind: 'observation', occurredAt: day(1), data: { text: 'Still here' } })
       expect(write.status).toBe(403)

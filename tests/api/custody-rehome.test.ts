@@ -35,6 +35,7 @@ describe('moving a fish to another pond of the same owner', () => {
     const photoId = await insertReadyPhoto(fish.id, owner.user.id, `${day(20)}T08:00:00.000Z`)
     const before = (await owner.client.get(`/api/fish/${fish.id}/timeline?limit=200`)).body.entries as { id: string, author: { name: string } }[]
 
+    expect((await owner.client.get(`/api/fish/${guide.id}/facts`)).body.companions.map((c: { fish: { id: string } }) => c.fish.id)).toEqual([fish.id])
     const asked = await owner.client.post(`/api/fish/${fish.id}/move`, { toPondId: garden.id })
     expect(asked.status).toBe(409)
     expect(asked.body.message).toMatch(/Bramble is linked to .* by companion notes/)
@@ -61,6 +62,10 @@ describe('moving a fish to another pond of the same owner', () => {
     const separation = (await entriesOfKind(guide.id, 'observation')).at(-1)!
     expect(separation.data).toEqual({ signs: [], text: `Separated from ${fish.name}: it moved to Garden pond on ${today()}.` })
     expect((await keeper.client.get(`/api/fish/${guide.id}/timeline`)).body.entries[0].data.text).toMatch(/^Separated from/)
+
+    // Once apart they are no longer each other's standing companions.
+    expect((await owner.client.get(`/api/fish/${guide.id}/facts`)).body.companions).toEqual([])
+    expect((await owner.client.get(`/api/fish/${fish.id}/facts`)).body.companions).toEqual([])
 
     // The keeper of the old pond no longer sees the fish; the profile lists where it has lived.
     expect((await keeper.client.get(`/api/fish/${fish.id}`)).status).toBe(404)

@@ -127,7 +127,9 @@ export function standingFactsSql(fishId: string, today: string) {
         order by e.occurred_at desc), '[]'::json)
       from timeline_entries e
       join fish o on o.id = case when e.fish_id = ${fishId} then e.related_fish_id else e.fish_id end
-      where e.kind = 'companion' and ${valid} and (e.fish_id = ${fishId} or e.related_fish_id = ${fishId})) as companions,
+      -- A companion that has moved to another pond is no longer a standing fact; the separation stays on the timeline.
+      where e.kind = 'companion' and ${valid} and (e.fish_id = ${fishId} or e.related_fish_id = ${fishId})
+        and o.pond_id = (select f.pond_id from fish f where f.id = ${fishId})) as companions,
     (select json_build_object('entryId', e.id, 'at', e.occurred_at, 'cause', e.data->>'cause')
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'death' and ${valid}

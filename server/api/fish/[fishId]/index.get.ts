@@ -3,7 +3,7 @@ import { fishIdParams } from '#shared/utils/fish-schemas'
 
 export default defineEventHandler(async (event) => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
-  const { fish, role } = await requireFishRole(event, fishId)
+  const { fish, role, readOnly } = await requireFishRole(event, fishId)
   const [pond] = await useDb().select({ name: schema.ponds.name }).from(schema.ponds).where(eq(schema.ponds.id, fish.pondId))
-  return toFishProfile(fish, role, pond!.name)
+  return toFishProfile(fish, role, pond!.name, readOnly)
 })

@@ -5,7 +5,7 @@ import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
 
 export default defineEventHandler(async (event): Promise<FishPhotos> => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
-  const { fish, role, user } = await requireFishRole(event, fishId)
+  const { fish, role, user, readOnly } = await requireFishRole(event, fishId)
   const cutoff = new Date(Date.now() - RECOVERABLE_DAYS * 86_400_000)
   const rows = await useDb().select({ photo: schema.photos, uploaderName: schema.users.name })
     .from(schema.photos)
@@ -18,7 +18,7 @@ export default defineEventHandler(async (event): Promise<FishPhotos> => {
   return {
     photos: items.filter(item => !item.removedAt),
     removed: items.filter(item => item.removedAt && item.canRemove),
-    canUpload: PHOTO_ADD_ROLES.includes(role),
+    canUpload: PHOTO_ADD_ROLES.includes(role) && !readOnly,
     canSetProfile: PROFILE_PHOTO_ROLES.includes(role),
   }
 })

@@ -2,6 +2,6 @@ import { pondIdParams } from '#shared/utils/pond-schemas'
 
 export default defineEventHandler(async (event) => {
   const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
-  const { role } = await requirePondRole(event, pondId)
-  return pondDetail(pondId, role)
+  const { role, readOnly } = await requirePondRole(event, pondId)
+  return pondDetail(pondId, role, readOnly)
 })
