@@ -105,7 +105,8 @@ describe('handing a pond over to a new owner', () => {
       // The client is told, so it offers no button the server would refuse.
       expect(profile.body.readOnly).toBe(true)
       expect((await person.client.get(`/api/ponds/${pond.id}`)).body.readOnly).toBe(true)
-      expect((await person.client.get(`/api/fish/${fish.id}/photos`)).body.canUpload).toBe(false)
+      const gallery = (await person.client.get(`/api/fish/${fish.id}/photos`)).body
+      expect(gallery).toMatchObject({ canUpload: false, canSetProfile: false })
       expect((await person.client.get(`/api/fish/${fish.id}/timeline`)).status).toBe(200)
       const write = await person.client.post(`/api/fish/${fish.id}/timeline`, { kind: 'observation', occurredAt: day(1), data: { text: 'Still here' } })
       expect(write.status).toBe(403)

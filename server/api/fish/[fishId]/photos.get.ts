@@ -14,11 +14,13 @@ export default defineEventHandler(async (event): Promise<FishPhotos> => {
     // Newest first by the day the photo was taken, the upload time standing in where the photo has no date.
     .orderBy(desc(sql`coalesce(${schema.photos.takenAt}, ${schema.photos.createdAt})`), desc(schema.photos.createdAt))
   const context = { user, role, profilePhotoId: fish.profilePhotoId }
+  // A read-only member sees the photos and no button the server would refuse.
   const items = rows.map(row => toPhotoItem(row.photo, row.uploaderName, context))
+    .map(item => (readOnly ? { ...item, canEdit: false, canRemove: false } : item))
   return {
     photos: items.filter(item => !item.removedAt),
     removed: items.filter(item => item.removedAt && item.canRemove),
     canUpload: PHOTO_ADD_ROLES.includes(role) && !readOnly,
-    canSetProfile: PROFILE_PHOTO_ROLES.includes(role),
+    canSetProfile: PROFILE_PHOTO_ROLES.includes(role) && !readOnly,
   }
 })
