@@ -6,9 +6,10 @@ source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
 cd "$ROOT"
 
 PORT="${PORT:-3000}"
-PG_PORT=54329
-SMTP_PORT=1025
-INBOX_PORT=1080
+# Other ports let a second checkout run beside this one.
+PG_PORT="${FINTRAIL_PG_PORT:-54329}"
+SMTP_PORT="${FINTRAIL_SMTP_PORT:-1025}"
+INBOX_PORT="${FINTRAIL_INBOX_PORT:-1080}"
 INBOX_URL="http://127.0.0.1:$INBOX_PORT"
 APP_ORIGIN="http://127.0.0.1:$PORT"
 
