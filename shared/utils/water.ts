@@ -30,7 +30,7 @@ export function unionizedAmmonia(totalAmmoniaMgL: number, tempC: number, pH: num
   return fraction === null ? null : totalAmmoniaMgL * fraction
 }
 
-// Ratios of molar masses (REFERENCES.md): NH3 17.031 / N 14.007; NO2⁻ / N 3.2844; NO3⁻ / N 4.4266.
+// Ratios of molar masses (docs/references.md): NH3 17.031 / N 14.007; NO2⁻ / N 3.2844; NO3⁻ / N 4.4266.
 const NH3_PER_N = 17.031 / 14.007
 const NO2_PER_N = 3.2844
 const NO3_PER_N = 4.4266
@@ -69,7 +69,7 @@ export function no3NToNo3(no3NMgL: number): number | null {
   return scaled(no3NMgL, NO3_PER_N)
 }
 
-// 1 dKH = 10 mg/L CaO = 17.848 mg/L as CaCO3 (molar masses, REFERENCES.md).
+// 1 dKH = 10 mg/L CaO = 17.848 mg/L as CaCO3 (molar masses, docs/references.md).
 const CACO3_MG_L_PER_DKH = 17.848
 
 /** Carbonate hardness in German degrees (dKH) → alkalinity in mg/L as CaCO3. */
