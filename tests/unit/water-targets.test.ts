@@ -45,11 +45,11 @@ describe('test-kit unit conversions', () => {
     { label: 'NIST SP 811: 212 °F → 100 °C', actual: () => fahrenheitToCelsius(212), expected: 100 },
     { label: 'derived: 77 °F → 25 °C', actual: () => fahrenheitToCelsius(77), expected: 25 },
     { label: 'derived: 20 °C → 68 °F', actual: () => celsiusToFahrenheit(20), expected: 68 },
-    // Salinity: 1 % = 10 g per 1000 = 10 ppt (REFERENCES.md: 0.3 % = 3 g/L).
-    { label: 'REFERENCES.md: 0.3 % → 3 ppt', actual: () => salinityPercentToPpt(0.3), expected: 3 },
+    // Salinity: 1 % = 10 g per 1000 = 10 ppt (docs/references.md: 0.3 % = 3 g/L).
+    { label: 'docs/references.md: 0.3 % → 3 ppt', actual: () => salinityPercentToPpt(0.3), expected: 3 },
     { label: 'derived: 5 ppt → 0.5 %', actual: () => salinityPptToPercent(5), expected: 0.5 },
-    // REFERENCES.md: 1 degree (dKH or dGH) = 17.848 mg/L as CaCO3.
-    { label: 'REFERENCES.md: 8 dGH → 142.784 mg/L CaCO3', actual: () => ghToCaCO3(8), expected: 142.784 },
+    // docs/references.md: 1 degree (dKH or dGH) = 17.848 mg/L as CaCO3.
+    { label: 'docs/references.md: 8 dGH → 142.784 mg/L CaCO3', actual: () => ghToCaCO3(8), expected: 142.784 },
     { label: 'derived: 178.48 mg/L CaCO3 → 10 dGH', actual: () => caCO3ToGh(178.48), expected: 10 },
   ])('$label', ({ actual, expected }) => {
     expect(actual()).toBeCloseTo(expected, 9)
