@@ -1,7 +1,7 @@
 import { eq } from 'drizzle-orm'
 import { MEASURED_WATER_PARAMETERS, targetFor, unionizedAmmoniaOf, WATER_PARAMETER_INFO, WATER_PARAMETERS, WATER_TARGET_EDITORS, waterFlags, type PondWaterTargets } from '#shared/utils/water-targets'
 import type { PondRole } from '#shared/types'
-import type { WaterTestView } from '#shared/types/water'
+import type { WaterReadingValues, WaterTestView } from '#shared/types/water'
 
 type WaterTestRow = typeof schema.waterTests.$inferSelect
 
@@ -12,7 +12,7 @@ export async function pondWaterTargets(pondId: string): Promise<PondWaterTargets
 
 /** The answer's shape: the readings, who tested, the computed NH3-N and a flag per value against the pond's targets. */
 export function waterTestView(row: WaterTestRow, testedByName: string, targets: PondWaterTargets): WaterTestView {
-  const readings = Object.fromEntries(MEASURED_WATER_PARAMETERS.map(p => [p, row[p] ?? null])) as WaterTestView['readings']
+  const readings = Object.fromEntries(MEASURED_WATER_PARAMETERS.map(p => [p, row[p] ?? null])) as WaterReadingValues
   return {
     id: row.id,
     pondId: row.pondId,
