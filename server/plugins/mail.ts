@@ -9,5 +9,6 @@ export default defineNitroPlugin(() => {
     retryBackoff: true,
     expireInSeconds: 120,
     pollingIntervalSeconds: 1,
+    concurrency: 2,
   })
 })

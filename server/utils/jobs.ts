@@ -17,6 +17,8 @@ export interface JobOptions {
   expireInSeconds?: number
   /** How often an idle worker looks for new jobs. */
   pollingIntervalSeconds?: number
+  /** Jobs of this name run at once in this process. */
+  concurrency?: number
 }
 
 export interface JobContext { id: string, retryCount: number, retryLimit: number, isLastAttempt: boolean }
@@ -24,7 +26,7 @@ export type JobHandler<T> = (data: T, job: JobContext) => Promise<void>
 
 interface Registration { name: string, handler: JobHandler<never>, options: JobOptions }
 
-const JOB_DEFAULTS: Required<JobOptions> = { retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInSeconds: 300, pollingIntervalSeconds: 2 }
+const JOB_DEFAULTS: Required<JobOptions> = { retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInSeconds: 300, pollingIntervalSeconds: 2, concurrency: 1 }
 const registrations = new Map<string, Registration>()
 let starting: Promise<PgBoss> | undefined
 let boss: PgBoss | undefined
@@ -34,10 +36,11 @@ async function startWorker(instance: PgBoss, { name, handler, options }: Registr
   // createQueue keeps an existing queue; updateQueue applies changed retry settings to it.
   await instance.createQueue(name, { name, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
   await instance.updateQueue(name, { name, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
-  await instance.work<unknown>(name, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: settings.pollingIntervalSeconds }, async ([job]) => {
+  const work = () => instance.work<unknown>(name, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: settings.pollingIntervalSeconds }, async ([job]) => {
     if (!job) return
     await (handler as JobHandler<unknown>)(job.data, { id: job.id, retryCount: job.retryCount, retryLimit: job.retryLimit, isLastAttempt: job.retryCount >= job.retryLimit })
   })
+  for (let i = 0; i < Math.max(1, settings.concurrency); i++) await work()
 }
 
 /** The started pg-boss; the first call starts it (Nitro does not wait for async plugins). */

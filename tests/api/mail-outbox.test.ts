@@ -18,7 +18,7 @@ describe('mail outbox (mail service up)', () => {
     const created = await owner.client.post(`/api/ponds/${pond.id}/invitations`, { email, role: 'keeper' })
     expect(created.status).toBe(201)
     const first = await waitForMail(email, m => m.subject.includes('invites you'))
-    const sent = await waitUntil(() => pendingInvitations(owner.client, pond.id), list => list[0]?.mail?.status === 'sent')
+    const sent = await waitUntil(() => pendingInvitations(owner.client, pond.id), list => list[0]?.mail?.status === 'sent', 45_000)
     expect(sent[0]).toMatchObject({ email, mail: { status: 'sent', attempts: 1 } })
 
     // Only an owner may resend; a non-member does not see the invitation at all.
@@ -60,7 +60,8 @@ describe('mail outbox (mail service down)', () => {
     await server?.stop()
   })
 
-  it('answers every offer 201 while mail is down, marks the mail failed after its retries, and resend delivers it later', async () => {
+  // Generous waits: on a loaded machine each attempt can take seconds.
+  it('answers every offer 201 while mail is down, marks the mail failed after its retries, and resend delivers it later', { timeout: 120_000 }, async () => {
     const owner = await signedInUser({}, {})
     const client = new ApiClient(server.url)
     expect((await client.post('/api/auth/sign-in', { email: owner.email, password: TEST_PASSWORD })).status).toBe(200)
@@ -73,11 +74,11 @@ describe('mail outbox (mail service down)', () => {
     expect((await client.post(`/api/fish/${fish.id}/transfers`, { email: uniqueEmail('down-rehome') })).status).toBe(201)
 
     // Two attempts (retry limit 1), then failed; the offers themselves stay open.
-    const failed = await waitUntil(() => pendingInvitations(client, pond.id), list => list[0]?.mail?.status === 'failed')
+    const failed = await waitUntil(() => pendingInvitations(client, pond.id), list => list[0]?.mail?.status === 'failed', 45_000)
     expect(failed[0]!.mail).toMatchObject({ status: 'failed', attempts: 2 })
-    const handovers = await waitUntil(() => client.get(`/api/ponds/${pond.id}/handovers`).then(r => r.body), list => list[0]?.mail?.status === 'failed')
+    const handovers = await waitUntil(() => client.get(`/api/ponds/${pond.id}/handovers`).then(r => r.body), list => list[0]?.mail?.status === 'failed', 45_000)
     expect(handovers).toHaveLength(1)
-    const transfers = await waitUntil(() => client.get(`/api/fish/${fish.id}/transfers`).then(r => r.body), list => list[0]?.mail?.status === 'failed')
+    const transfers = await waitUntil(() => client.get(`/api/fish/${fish.id}/transfers`).then(r => r.body), list => list[0]?.mail?.status === 'failed', 45_000)
     expect(transfers).toHaveLength(1)
 
     // The mail service comes back: resend goes out, with a link that works.
@@ -86,9 +87,9 @@ describe('mail outbox (mail service down)', () => {
       expect((await client.post(`/api/ponds/${pond.id}/invitations/${failed[0]!.id}/resend`)).status).toBe(202)
       expect((await client.post(`/api/ponds/${pond.id}/handovers/${handovers[0].id}/resend`)).status).toBe(202)
       expect((await client.post(`/api/fish/${fish.id}/transfers/${transfers[0].id}/resend`)).status).toBe(202)
-      await waitUntil(() => pendingInvitations(client, pond.id), list => list[0]?.mail?.status === 'sent')
-      await waitUntil(() => client.get(`/api/ponds/${pond.id}/handovers`).then(r => r.body), list => list[0]?.mail?.status === 'sent')
-      await waitUntil(() => client.get(`/api/fish/${fish.id}/transfers`).then(r => r.body), list => list[0]?.mail?.status === 'sent')
+      await waitUntil(() => pendingInvitations(client, pond.id), list => list[0]?.mail?.status === 'sent', 45_000)
+      await waitUntil(() => client.get(`/api/ponds/${pond.id}/handovers`).then(r => r.body), list => list[0]?.mail?.status === 'sent', 45_000)
+      await waitUntil(() => client.get(`/api/fish/${fish.id}/transfers`).then(r => r.body), list => list[0]?.mail?.status === 'sent', 45_000)
       const delivered = smtp.received.find(m => m.to.includes(inviteeEmail))
       expect(delivered).toBeDefined()
       const parsed = await simpleParser(delivered!.raw)
@@ -117,7 +118,7 @@ describe('mail outbox (mail service down)', () => {
     ])
   })
 
-  it('loses no queued mail when the server is killed: after a restart the mail goes out', async () => {
+  it('loses no queued mail when the server is killed: after a restart the mail goes out', { timeout: 120_000 }, async () => {
     const owner = await signedInUser()
     const client = new ApiClient(server.url)
     expect((await client.post('/api/auth/sign-in', { email: owner.email, password: TEST_PASSWORD })).status).toBe(200)
@@ -130,8 +131,8 @@ describe('mail outbox (mail service down)', () => {
     const smtp = await startCapturingSmtp(smtpPort)
     try {
       server = await startServer(port, serverEnv)
-      await waitUntil(async () => smtp.received.some(m => m.to.includes(email)), found => found, 20_000)
-      const [row] = await waitUntil(() => testDb().query(`select status from outgoing_mail where "to" = $1`, [email]).then(r => r.rows), rows => rows[0]?.status === 'sent')
+      await waitUntil(async () => smtp.received.some(m => m.to.includes(email)), found => found, 45_000)
+      const [row] = await waitUntil(() => testDb().query(`select status from outgoing_mail where "to" = $1`, [email]).then(r => r.rows), rows => rows[0]?.status === 'sent', 45_000)
       expect(row.status).toBe('sent')
     }
     finally {

@@ -54,7 +54,11 @@ export async function startServer(port: number, extraEnv: Record<string, string 
       if (response.ok || (options.acceptUnhealthy && response.status === 503)) break
     }
     catch { /* not listening yet */ }
-    if (Date.now() > deadline) throw new Error(`server did not start on ${url}:\n${output}`)
+    if (Date.now() > deadline) {
+      // Not left running: a stray server would hold the port for the next run.
+      child.kill('SIGKILL')
+      throw new Error(`server did not start on ${url}:\n${output}`)
+    }
     await new Promise(r => setTimeout(r, 150))
   }
   const end = async (signal: NodeJS.Signals) => {
