@@ -33,8 +33,14 @@ export default defineNuxtConfig({
     mailRetryDelaySeconds: 10,
     // PostgreSQL schema of the job queue (pg-boss), in the app's database.
     jobsSchema: 'pgboss',
+    // First automatic retry of a photo whose files could not be written (doubled each time).
+    photoRetryDelaySeconds: 30,
+    // Failed sign-ins in the window: per account and address (then 429), per address over all accounts
+    // (then 429), and per account from anywhere, above which each attempt waits up to the cap.
     signInLimit: 10,
     signInIpLimit: 100,
+    signInAccountCeiling: 20,
+    signInDelayCapMs: 3000,
     signInWindowSeconds: 900,
     sessionIdleSeconds: 60 * 60 * 24 * 7,
     sessionAbsoluteSeconds: 60 * 60 * 24 * 30,

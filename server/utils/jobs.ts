@@ -19,6 +19,8 @@ export interface JobOptions {
   pollingIntervalSeconds?: number
   /** Jobs of this name run at once in this process. */
   concurrency?: number
+  /** pg-boss queue policy: 'short' keeps one waiting job per singletonKey (a second send is dropped). */
+  policy?: 'standard' | 'short' | 'singleton' | 'stately'
 }
 
 export interface JobContext { id: string, retryCount: number, retryLimit: number, isLastAttempt: boolean }
@@ -26,7 +28,7 @@ export type JobHandler<T> = (data: T, job: JobContext) => Promise<void>
 
 interface Registration { name: string, handler: JobHandler<never>, options: JobOptions }
 
-const JOB_DEFAULTS: Required<JobOptions> = { retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInSeconds: 300, pollingIntervalSeconds: 2, concurrency: 1 }
+const JOB_DEFAULTS: Required<JobOptions> = { retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInSeconds: 300, pollingIntervalSeconds: 2, concurrency: 1, policy: 'standard' }
 const registrations = new Map<string, Registration>()
 let starting: Promise<PgBoss> | undefined
 let boss: PgBoss | undefined
@@ -34,7 +36,7 @@ let boss: PgBoss | undefined
 async function startWorker(instance: PgBoss, { name, handler, options }: Registration) {
   const settings = { ...JOB_DEFAULTS, ...options }
   // createQueue keeps an existing queue; updateQueue applies changed retry settings to it.
-  await instance.createQueue(name, { name, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
+  await instance.createQueue(name, { name, policy: settings.policy, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
   await instance.updateQueue(name, { name, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
   const work = () => instance.work<unknown>(name, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: settings.pollingIntervalSeconds }, async ([job]) => {
     if (!job) return

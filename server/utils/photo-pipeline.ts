@@ -86,6 +86,7 @@ async function dropPhoto(photo: PhotoRow) {
 
 function describeFailure(error: unknown) {
   const code = (error as NodeJS.ErrnoException)?.code
+  if (isStorageFault(error)) return `The server's storage could not be written (${code}). The upload is kept and will be retried by itself; you can also press Retry.`
   const detail = code ?? (error instanceof Error ? error.message.split('\n')[0]!.slice(0, 160) : 'unknown error')
   return `The server could not make the resized copies (${detail}). The photo itself is stored: press Retry.`
 }
@@ -97,18 +98,15 @@ async function offerAsProfile(photo: PhotoRow) {
 }
 
 /** Makes the derived copies of a stored photo. The caller holds the upload's lock. */
-async function processPhoto(photo: PhotoRow): Promise<PhotoRow> {
-  if (!(await exists(originalPath(photo.id)))) {
-    // The process stopped between the row and the link: the upload's bytes are still there.
-    if (await exists(uploadPath(photo.uploadId))) await keepOriginal(photo.uploadId, photo.id)
-    else {
-      await dropPhoto(photo)
-      throw new PhotoRejection(410, 'The uploaded file was lost before it could be processed. Upload the photo again.')
-    }
-  }
+async function processPhoto(photo: PhotoRow, options: { retryOnStorageFault?: boolean } = {}): Promise<PhotoRow> {
   const finalDir = derivedDir(photo.id)
   const workDir = `${finalDir}.tmp-${randomBytes(6).toString('hex')}`
   try {
+    if (!(await exists(originalPath(photo.id)))) {
+      // The process stopped between the row and the link, or the link could not be written: the upload's bytes are still there.
+      if (await exists(uploadPath(photo.uploadId))) await keepOriginal(photo.uploadId, photo.id)
+      else throw new PhotoRejection(410, 'The uploaded file was lost before it could be processed. Upload the photo again.')
+    }
     const variants = await makeDerived(originalPath(photo.id), workDir)
     // Appears whole or not at all: readers never see half a set of sizes.
     await rm(finalDir, { recursive: true, force: true })
@@ -127,9 +125,11 @@ async function processPhoto(photo: PhotoRow): Promise<PhotoRow> {
       throw error
     }
     console.error(`[photos] processing ${photo.id} failed:`, error)
+    // Never left pending: failed shows Retry, and a storage fault is retried by itself as well.
     const [failed] = await useDb().update(schema.photos)
       .set({ state: 'failed', failureReason: describeFailure(error), updatedAt: new Date() })
       .where(eq(schema.photos.id, photo.id)).returning()
+    if (isStorageFault(error) && options.retryOnStorageFault !== false) await scheduleAutomaticRetry(photo.id)
     return failed ?? photo
   }
 }
@@ -204,7 +204,7 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
         await discardUpload(uploadId)
         return { photo: winner, duplicate: true }
       }
-      await keepOriginal(uploadId, row!.id)
+      // processPhoto links the original first; a write that fails there marks the photo failed, not pending.
       return { photo: await processPhoto(row!), duplicate: false }
     }
     catch (error) {
@@ -217,14 +217,15 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
 }
 
 /** Runs processing again for a failed (or interrupted) photo; a ready one is left as it is. */
-export function retryPhoto(photo: PhotoRow) {
+/** `retryOnStorageFault: false` from the retry job itself, which pg-boss retries with backoff. */
+export function retryPhoto(photo: PhotoRow, options: { retryOnStorageFault?: boolean } = {}) {
   return runPhotoJob(photo.uploadId, async () => {
     const [current] = await useDb().select().from(schema.photos).where(eq(schema.photos.id, photo.id)).limit(1)
     if (!current) throw new PhotoRejection(404, 'Photo not found')
     if (current.state === 'ready') return current
     const [pending] = await useDb().update(schema.photos).set({ state: 'pending', failureReason: null, updatedAt: new Date() })
       .where(eq(schema.photos.id, photo.id)).returning()
-    return processPhoto(pending ?? current)
+    return processPhoto(pending ?? current, options)
   })
 }
 

@@ -1,3 +1,4 @@
+import { mkdirSync } from 'node:fs'
 import type { IncomingMessage } from 'node:http'
 import { FileStore } from '@tus/file-store'
 import { Server } from '@tus/server'
@@ -31,6 +32,10 @@ function eventOf(req: Request): H3Event {
 function toTusResponse(error: unknown): TusResponse | { status_code: number, body: string } {
   if (error instanceof TusResponse) return error
   if (error instanceof PhotoRejection) return new TusResponse(error.status, `${error.message}\n`)
+  if (isStorageFault(error)) {
+    console.error('[uploads] storage not writable:', (error as Error).message)
+    return new TusResponse(503, `${storageUnavailableMessage(error)}\n`)
+  }
   if (isError(error)) return new TusResponse(error.statusCode, `${error.message || error.statusMessage}\n`)
   const tusError = error as { status_code?: number, body?: string }
   if (typeof tusError?.status_code === 'number' && typeof tusError.body === 'string') return { status_code: tusError.status_code, body: tusError.body }
@@ -51,6 +56,13 @@ let tus: Server | undefined
 
 export function useTusServer(): Server {
   if (tus) return tus
+  // @tus/file-store creates its folder in a callback that throws, which would end the process: make it here first.
+  try {
+    mkdirSync(uploadsDir(), { recursive: true })
+  }
+  catch (error) {
+    throw createError({ statusCode: 503, statusMessage: 'Storage not writable', message: storageUnavailableMessage(error) })
+  }
   const config = useRuntimeConfig()
   const origins = new Set(String(config.appOrigin || '').split(',').map(s => s.trim()).filter(Boolean))
   const store = new FileStore({ directory: uploadsDir(), expirationPeriodInMilliseconds: UPLOAD_EXPIRY_HOURS * 3600_000 })

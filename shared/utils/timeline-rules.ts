@@ -118,3 +118,11 @@ export function amendDecision(
       : 'Only its author or a pond owner can amend this entry',
   }
 }
+
+/**
+ * A fish's status (alive, deceased, rehomed) follows from death entries and moves. Setting it by
+ * hand is left to those who may write a death entry; the fish edit route refuses it to others (403).
+ */
+export function mayChangeFishStatus(role: PondRole): boolean {
+  return writeDecision(role, 'death', {}).allowed
+}

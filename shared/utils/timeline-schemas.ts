@@ -15,6 +15,10 @@ const calendarDay = z.iso.date('Use the form YYYY-MM-DD')
 const amount = (what: string, max: number, unit: string) => z.number(`Enter the ${what} as a number`)
   .positive(`The ${what} must be more than 0`)
   .max(max, `More than ${max} ${unit} is not a plausible ${what}`)
+// A weight or length below what a scale or a ruler at the pond can read is a typing slip, and values
+// like 1e-300 break the condition factor (length cubed underflows to 0).
+const bodyAmount = (what: string, min: number, max: number, unit: string) => amount(what, max, unit)
+  .min(min, `Less than ${min} ${unit} is not a ${what} a fish can have`)
 const minutes = (what: string, max: number) => z.number(`Enter the ${what} in minutes`)
   .min(0, `The ${what} cannot be negative`).max(max, `More than ${max} minutes is not a plausible ${what}`)
 
@@ -30,10 +34,14 @@ const enteredAs = z.strictObject({
 export const LENGTH_TYPES = ['total', 'fork', 'standard'] as const
 export type LengthType = typeof LENGTH_TYPES[number]
 
+/** The smallest weight and length taken: a newly hatched koi fry weighs about 2 mg and measures about 5 mm (from memory, common practice), so a weighable pond fish is far above both. */
+export const MIN_WEIGHT_G = 0.1
+export const MIN_LENGTH_CM = 0.5
+
 export const measurementData = z.strictObject({
   // The largest koi on record weigh about 40 kg and measure about 1.2 m.
-  weightG: amount('weight', 60_000, 'g').optional(),
-  lengthCm: amount('length', 150, 'cm').optional(),
+  weightG: bodyAmount('weight', MIN_WEIGHT_G, 60_000, 'g').optional(),
+  lengthCm: bodyAmount('length', MIN_LENGTH_CM, 150, 'cm').optional(),
   lengthType: z.enum(LENGTH_TYPES, 'Choose total, fork or standard length').default('total'),
   entered: enteredAs,
   note: limitedText(1000).optional(),

@@ -2,7 +2,7 @@ import { afterAll, describe, expect, it } from 'vitest'
 import { randomUUID } from 'node:crypto'
 import { ApiClient } from '../support/client'
 import { closeTestDb, testDb } from '../support/db'
-import { linkIn, waitForMail } from '../support/mail'
+import { linkIn, receivedAfter, waitForMail } from '../support/mail'
 import { signedInUser, TEST_PASSWORD, uniqueEmail } from '../support/factories'
 import { MAIN_URL } from '../support/env'
 
@@ -141,24 +141,53 @@ describe('cross-site requests', () => {
 })
 
 describe('sign-in rate limit', () => {
-  it('answers 429 with Retry-After after 10 failures for one account, and a password reset clears it', async () => {
+  it('answers 429 with Retry-After after 10 failures for one account from one address; the owner elsewhere still gets in', async () => {
     const { email } = await signedInUser()
+    const attacker = fromAddress()
     for (let i = 0; i < 10; i++) {
-      const response = await new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: `wrong password ${i}` })
+      const response = await new ApiClient(undefined, attacker).post('/api/auth/sign-in', { email, password: `wrong password ${i}` })
       expect(response.status).toBe(401)
     }
-    const limited = await new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })
+    const limited = await new ApiClient(undefined, attacker).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })
     expect(limited.status).toBe(429)
     const retryAfter = Number(limited.headers.get('retry-after'))
     expect(retryAfter).toBeGreaterThan(0)
     expect(retryAfter).toBeLessThanOrEqual(900)
+    expect((await new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(200)
+  })
 
+  it('cannot be used to lock a person out: wrong passwords from many addresses leave the owner a short delay, not a lock', async () => {
+    const { email } = await signedInUser()
+    const owner = fromAddress()
+    // 25 wrong passwords from 25 addresses: over the per-account ceiling (20), so the account gets a delay.
+    for (let batch = 0; batch < 5; batch++) {
+      const statuses = await Promise.all(Array.from({ length: 5 }, (_, i) =>
+        new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: `guess ${batch}-${i}` }).then(r => r.status)))
+      expect(statuses).toEqual([401, 401, 401, 401, 401])
+    }
+    const { rows } = await testDb().query('select count(*)::int as n from sign_in_failures where key = $1', [`email:${email}`])
+    expect(rows[0].n).toBe(25)
+    const started = Date.now()
+    const own = await new ApiClient(undefined, owner).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })
+    expect(own.status).toBe(200)
+    // The delay is short (capped at 3 s by default), far from the old 15-minute lock.
+    expect(Date.now() - started).toBeLessThan(10_000)
+  })
+
+  it('a password reset clears the failures of every address for the account', async () => {
+    const { email } = await signedInUser()
+    const attacker = fromAddress()
+    for (let i = 0; i < 10; i++) await new ApiClient(undefined, attacker).post('/api/auth/sign-in', { email, password: `wrong password ${i}` })
+    expect((await new ApiClient(undefined, attacker).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(429)
+
+    const since = new Date()
     await new ApiClient().post('/api/auth/reset-request', { email })
-    const mail = await waitForMail(email, m => m.subject.includes('Reset'))
+    const mail = await waitForMail(email, receivedAfter(since, m => m.subject.includes('Reset')))
     const token = new URL(linkIn(mail, '/reset-password')).searchParams.get('token')
     expect((await new ApiClient().post('/api/auth/reset', { token, password: 'fresh reeds by the water' })).status).toBe(200)
-    const after = await new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: 'fresh reeds by the water' })
-    expect(after.status).toBe(200)
+    const { rows } = await testDb().query(`select count(*)::int as n from sign_in_failures where key like $1`, [`%${email}%`])
+    expect(rows[0].n).toBe(0)
+    expect((await new ApiClient(undefined, attacker).post('/api/auth/sign-in', { email, password: 'fresh reeds by the water' })).status).toBe(200)
   })
 
   it('limits one client address trying many accounts', async () => {
@@ -172,13 +201,14 @@ describe('sign-in rate limit', () => {
     expect(other.status).toBe(401)
   })
 
-  it('lets the account in again once the window has passed', async () => {
+  it('lets the address in again once the window has passed', async () => {
     const { email } = await signedInUser()
-    for (let i = 0; i < 10; i++) await new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: `wrong ${i} wrong` })
-    expect((await new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(429)
+    const address = fromAddress()
+    for (let i = 0; i < 10; i++) await new ApiClient(undefined, address).post('/api/auth/sign-in', { email, password: `wrong ${i} wrong` })
+    expect((await new ApiClient(undefined, address).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(429)
     // Age the failures past the 15-minute window instead of waiting for it.
-    await testDb().query(`update sign_in_failures set at = at - interval '16 minutes' where key = $1`, [`email:${email}`])
-    expect((await new ApiClient(undefined, fromAddress()).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(200)
+    await testDb().query(`update sign_in_failures set at = at - interval '16 minutes' where key like $1`, [`%${email}%`])
+    expect((await new ApiClient(undefined, address).post('/api/auth/sign-in', { email, password: TEST_PASSWORD })).status).toBe(200)
   })
 })
 

@@ -63,7 +63,10 @@ export async function startServer(port: number, extraEnv: Record<string, string 
   }
   const end = async (signal: NodeJS.Signals) => {
     if (child.exitCode === null && child.signalCode === null) child.kill(signal)
+    // A server stuck in its shutdown must not outlive the test and answer the next one on this port.
+    const stuck = setTimeout(() => child.kill('SIGKILL'), 15_000)
     await exited
+    clearTimeout(stuck)
   }
   return { url, process: child, stop: () => end('SIGTERM'), kill: () => end('SIGKILL'), output: () => output }
 }

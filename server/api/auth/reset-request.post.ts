@@ -12,10 +12,12 @@ export default defineEventHandler(async (event) => {
   const { email } = await readValidated(event, resetRequestSchema)
   const [user] = await useDb().select().from(schema.users).where(sql`lower(${schema.users.email}) = ${email}`).limit(1)
   const origin = appOrigin(event)
+  // Taken before the transaction, so the link lives one hour from its row's creation and not a moment more.
+  const expiresAt = new Date(Date.now() + RESET_LIFETIME_MS)
   await useDb().transaction(async (tx) => {
     if (user) {
       const { token, tokenHash } = newLinkToken()
-      const [reset] = await tx.insert(schema.passwordResets).values({ userId: user.id, tokenHash, expiresAt: new Date(Date.now() + RESET_LIFETIME_MS) }).returning({ id: schema.passwordResets.id })
+      const [reset] = await tx.insert(schema.passwordResets).values({ userId: user.id, tokenHash, expiresAt }).returning({ id: schema.passwordResets.id })
       await queueMail(tx, {
         to: user.email, kind: 'password-reset', subjectType: 'password-reset', subjectId: reset!.id,
         subject: 'Reset your Fintrail password',

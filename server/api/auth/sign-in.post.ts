@@ -14,7 +14,7 @@ export default defineEventHandler(async (event) => {
     await recordSignInFailure(event, input.email)
     throw createError({ statusCode: 401, statusMessage: 'Wrong e-mail or password', message: 'The e-mail or the password is wrong.' })
   }
-  await clearSignInFailures(input.email)
+  await clearSignInFailuresFrom(event, input.email)
   await startSession(event, user)
   return publicUser(user)
 })

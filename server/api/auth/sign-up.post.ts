@@ -8,9 +8,13 @@ export default defineEventHandler(async (event) => {
   if (existing.length) {
     throw createError({ statusCode: 409, statusMessage: 'E-mail already registered', data: { fieldErrors: { email: ['An account with this e-mail exists: sign in or reset the password'] } } })
   }
+  const passwordHash = await hashPassword(input.password)
   const [user] = await useDb().insert(schema.users)
-    .values({ name: input.name, email: input.email, passwordHash: await hashPassword(input.password) })
+    .values({ name: input.name, email: input.email, passwordHash })
     .returning()
+    .catch((error) => {
+      throw conflictFromUniqueViolation(error) ?? error
+    })
   await startSession(event, user!)
   setResponseStatus(event, 201)
   return publicUser(user!)

@@ -1,10 +1,16 @@
 import { and, eq } from 'drizzle-orm'
 import { fishIdParams, fishUpdateSchema, hatchYearFrom, SCIENTIFIC_NAMES } from '#shared/utils/fish-schemas'
+import { ENTRY_RULES, mayChangeFishStatus } from '#shared/utils/timeline-rules'
 
 export default defineEventHandler(async (event) => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   const { fish, role, user } = await requireFishRole(event, fishId)
   const { version, estimatedAgeYears, hatchYear, ...input } = await readValidated(event, fishUpdateSchema)
+  // Sending the status it already has is no change (the edit form sends every field).
+  if (input.status !== undefined && input.status !== fish.status && !mayChangeFishStatus(role)) {
+    const message = `The status follows from death entries and moves: only ${ENTRY_RULES.death.roles.join(' or ')} members of the pond can change it`
+    throw createError({ statusCode: 403, statusMessage: 'Forbidden', message, data: { fieldErrors: { status: [message] } } })
+  }
   const species = input.species ?? fish.species
   const next: Partial<typeof schema.fish.$inferInsert> = { ...input, ...hatchYearFrom({ hatchYear, estimatedAgeYears }) }
   if (species !== 'other') next.scientificName = SCIENTIFIC_NAMES[species]

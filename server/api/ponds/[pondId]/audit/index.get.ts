@@ -3,8 +3,20 @@ import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import { AUDIT_ACTIONS, describeAuditEvent, type AuditAction, type AuditPage } from '#shared/utils/audit-actions'
 import { pondIdParams } from '#shared/utils/pond-schemas'
 
+const MARKER = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2}):(\d{2})(?:\.\d{1,6})?Z\|[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i
+
+/** A marker this log wrote: a real UTC time (no 30 February, no hour 25) and an id. */
+function isPageMarker(text: string) {
+  const parts = text.match(MARKER)?.slice(1, 7).map(Number)
+  if (!parts) return false
+  const [year, month, day, hour, minute, second] = parts as [number, number, number, number, number, number]
+  const time = new Date(Date.UTC(year, month - 1, day, hour, minute, second))
+  return time.getUTCFullYear() === year && time.getUTCMonth() === month - 1 && time.getUTCDate() === day
+    && time.getUTCHours() === hour && time.getUTCMinutes() === minute && time.getUTCSeconds() === second
+}
+
 const query = z.strictObject({
-  before: z.string().trim().regex(/^\d{4}-\d{2}-\d{2}T[\d:.]+Z\|[0-9a-f-]{36}$/i, 'Not a page marker from this log').optional(),
+  before: z.string().trim().refine(isPageMarker, 'Not a page marker from this log').optional(),
   limit: z.coerce.number('Enter a number').int('A whole number').min(1, 'At least 1').max(200, 'At most 200').default(50),
 })
 
