@@ -82,7 +82,7 @@ async function main() {
     const fishAccessSql = 'select f.*, m.role from fish f join memberships m on m.pond_id = f.pond_id and m.user_id = $2 where f.id = $1 limit 1'
     const routes = [
       { label: `GET /api/fish/:id/timeline (first page of ${ENTRIES} entries)`, path: `/api/fish/${fishId}/timeline`, statement: query(timelinePageSql(fishId, { kinds: [], cursor: null, limit: 50 })!), access: fishAccessSql },
-      { label: `GET /api/fish/:id/facts (profile header, ${ENTRIES} entries)`, path: `/api/fish/${fishId}/facts`, statement: query(standingFactsSql(fishId, today)), access: fishAccessSql },
+      { label: `GET /api/fish/:id/facts (profile header, ${ENTRIES} entries)`, path: `/api/fish/${fishId}/facts`, statement: query(standingFactsSql(fishId, today, today)), access: fishAccessSql },
       { label: `GET /api/ponds/:id/fish (${POND_FISH} fish with K and weight-loss flag)`, path: `/api/ponds/${pondId}/fish`, statement: query(fishListSql(pondId, {})), access: 'select role from memberships where pond_id = $1 and user_id = $2 limit 1' },
       { label: `GET /api/fish/:id/growth (${ENTRIES * 2 / 8} measurements, markers)`, path: `/api/fish/${fishId}/growth`, statement: query(growthSql(fishId)), access: fishAccessSql },
     ]
