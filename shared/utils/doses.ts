@@ -19,7 +19,7 @@ export const DOSE_CAUTIONS: readonly string[] = Object.freeze([
 /**
  * Shown beside every anaesthesia form, after the first line of DOSE_CAUTIONS. Aeration, recovery in
  * water from the same source, and an effect that varies with temperature and size are common practice,
- * as reviewed by Neiffer & Stamper 2009, ILAR Journal 50(4):343-360 (citation recalled from memory).
+ * as reviewed by Neiffer & Stamper 2009, ILAR Journal 50(4):343-360 (docs/references.md; recalled from memory).
  */
 export const ANAESTHESIA_CAUTIONS: readonly string[] = Object.freeze([
   'Aerate the anaesthetic bath throughout, and recover the fish in clean, well-aerated water from the same source (same temperature and chemistry).',
