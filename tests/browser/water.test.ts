@@ -127,6 +127,18 @@ describe('the water log in Chromium', () => {
     const entry = timeline.entries[0]
     expect(entry.data).toMatchObject({ drug: 'Enrofloxacin 50 mg/mL', route: 'injection', dose: 10, doseUnit: 'mg/kg', injectionSite: 'intramuscular, below the dorsal fin' })
     expect(entry.data.notes).toContain(`drawn ${expected.value} mL`)
+
+    // Salt starts from the last measured salinity, or says there is none.
+    await page.getByTestId('helper-salt').click()
+    const pondDetail = (await api.get(`/api/ponds/${pond.id}`)).body
+    if (pondDetail.volumeLitres != null) expect(await page.getByTestId('salt-last-salinity').textContent()).toMatch(/Last measured salinity|No salinity has been measured/)
+    await page.getByTestId('salt-tank').check()
+    await page.getByTestId('salt-volume').fill('200')
+    await page.getByTestId('salt-target').fill('0.3')
+    // docs/references.md: 0.3 % = 3 g/L; 3 g/L × 200 L (typed in the person's gallons or litres) is worked out on screen.
+    await page.getByTestId('salt-result').waitFor()
+    expect(await page.getByTestId('salt-result').textContent()).toContain('Add 0.6 kg of salt')
+    await screenshots(page, 'dose-salt')
     await page.close()
   })
 
