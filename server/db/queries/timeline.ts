@@ -164,7 +164,7 @@ export function standingFactsSql(fishId: string, today: string, recentFrom: stri
 
 export interface GrowthRow extends Record<string, unknown> {
   points: { entryId: string, at: string, weightG: number | null, lengthCm: number | null, lengthType: string | null }[]
-  events: { entryId: string, at: string, kind: 'procedure' | 'treatment' | 'death', name: string | null, side: string | null, drug: string | null, route: string | null }[]
+  events: { entryId: string, at: string, kind: 'procedure' | 'treatment' | 'death', name: string | null, code: string | null, side: string | null, drug: string | null, route: string | null }[]
   companion_deaths: { entryId: string, at: string, fishName: string }[]
 }
 
@@ -176,7 +176,7 @@ export function growthSql(fishId: string) {
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'measurement' and ${valid}) as points,
     (select coalesce(json_agg(json_build_object('entryId', e.id, 'at', e.occurred_at, 'kind', e.kind,
-          'name', e.data->>'name', 'side', e.data->>'side', 'drug', e.data->>'drug', 'route', e.data->>'route') order by e.occurred_at), '[]'::json)
+          'name', e.data->>'name', 'code', e.data->>'code', 'side', e.data->>'side', 'drug', e.data->>'drug', 'route', e.data->>'route') order by e.occurred_at), '[]'::json)
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind in ('procedure', 'treatment', 'death') and ${valid}) as events,
     (select coalesce(json_agg(json_build_object('entryId', d.id, 'at', d.occurred_at, 'fishName', o.name) order by d.occurred_at), '[]'::json)
