@@ -42,7 +42,7 @@ async function seed() {
             else jsonb_build_object('name', 'Problem ' || i, 'onset', '2006-01-01', 'status', 'resolved', 'resolvedOn', '2007-01-01') end
           when 6 then case when i <= 100 then jsonb_build_object('relatedFishId', $4::text, 'relation', 'always_together')
             else jsonb_build_object('signs', jsonb_build_array('eating_well'), 'text', 'Entry ' || i) end
-          else jsonb_build_object('name', case when i = 7 then 'enucleation' else 'fin trim' end, 'side', case when i = 7 then 'left' else 'not_applicable' end, 'surgeon', 'Bench Vet')
+          else jsonb_build_object('code', case when i = 7 then 'enucleation' else 'fin_trim' end, 'side', case when i = 7 then 'left' else 'not_applicable' end, 'performedBy', 'Bench Vet')
         end
       from generate_series(1, ${ENTRIES}) i
       returning id, occurred_at, data, author_id
