@@ -211,9 +211,9 @@ describe('the life record in Chromium', () => {
     expect(await entry.getByTestId('dose-1').getAttribute('data-state')).toBe('missed')
     await screenshots(page, 'timeline-missed-doses')
     await entry.getByTestId('dose-given-1').click()
-    await expect.poll(() => entry.getByTestId('dose-1').getAttribute('data-state')).toBe('given')
+    await expect.poll(() => entry.getByTestId('dose-1').getAttribute('data-state'), { timeout: 15_000 }).toBe('given')
     expect(await entry.getByTestId('dose-1').textContent()).toContain('by Priya Anand')
-    await expect.poll(() => fact.getByTestId('fact-missed-dose').count()).toBe(1)
+    await expect.poll(() => fact.getByTestId('fact-missed-dose').count(), { timeout: 15_000 }).toBe(1)
     await page.close()
   })
 
