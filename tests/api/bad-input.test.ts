@@ -63,7 +63,8 @@ describe('ordinary bad input answers 4xx, never 500', () => {
 })
 
 describe('an unwritable storage folder', () => {
-  it('answers an upload with a clear 503, not a crash', async () => {
+  // A server of its own starts in these: generous time on a loaded machine.
+  it('answers an upload with a clear 503, not a crash', { timeout: 90_000 }, async () => {
     const dir = mkdtempSync(join(tmpdir(), 'fintrail-storage-'))
     const notAFolder = join(dir, 'storage')
     writeFileSync(notAFolder, 'a file where the folder should be')
@@ -85,7 +86,7 @@ describe('an unwritable storage folder', () => {
     }
   })
 
-  it('marks a photo whose final write failed as failed (not pending) and retries it by itself once the folder is writable', async () => {
+  it('marks a photo whose final write failed as failed (not pending) and retries it by itself once the folder is writable', { timeout: 120_000 }, async () => {
     const dir = mkdtempSync(join(tmpdir(), 'fintrail-storage-'))
     // Uploads can be written, but where the originals go there is a file: the last step fails.
     const blocker = join(dir, 'photos')
