@@ -40,7 +40,7 @@ function lookAlike(pattern: FishPattern, seed: number): FishPattern {
 /** `count` fish: about a third of them in look-alike pairs. */
 export function benchFish(count: number): BenchFish[] {
   const fish: BenchFish[] = []
-  const pairs = Math.floor(count / 6)
+  const pairs = Math.max(1, Math.floor(count / 6))
   for (let i = 0; fish.length < count; i++) {
     const [species, variety] = VARIETIES[i % VARIETIES.length]!
     const pattern = fishPattern(1000 + i * 7919, species, variety)

@@ -123,6 +123,7 @@ function backgroundCentres(colours: Float32Array, width: number, height: number,
     }
   }
   let centres = Array.from({ length: k }, (_, j) => [...samples[Math.floor((j + 0.5) * samples.length / k)]!])
+  let shares = centres.map(() => 1 / k)
   for (let iteration = 0; iteration < 8; iteration++) {
     const sums = centres.map(() => [0, 0, 0, 0])
     for (const s of samples) {
@@ -142,8 +143,12 @@ function backgroundCentres(colours: Float32Array, width: number, height: number,
       sum[3]!++
     }
     centres = sums.map((s, j) => (s[3]! ? [s[0]! / s[3]!, s[1]! / s[3]!, s[2]! / s[3]!] : centres[j]!))
+    shares = sums.map(s => s[3]! / samples.length)
   }
-  return centres
+  // A fish running off the edge puts its own colours on the border: a shade that covers only a
+  // small stretch of the border is the fish, not the pond.
+  const kept = centres.filter((_, j) => shares[j]! >= 0.12)
+  return kept.length ? kept : centres
 }
 
 /** Otsu's threshold (Otsu 1979, IEEE Trans. SMC 9:62-66): the cut that best separates two classes of a histogram. */

@@ -23,12 +23,13 @@ export interface RankedFish {
 }
 
 /** References compared by keypoints after the colour layout has ranked them all. */
-const KEYPOINT_SHORTLIST = 24
+const KEYPOINT_SHORTLIST = 16
 /** Lowe's ratio test (Lowe 2004, IJCV 60:91-110): keep a match only if clearly better than the runner-up. */
 const RATIO = 0.8
 /** RANSAC reprojection error in pixels of the 320 px turned fish (Fischler & Bolles 1981, CACM 24:381-395). */
 const RANSAC_THRESHOLD = 6
 const MIN_MATCHES = 8
+const CONFIDENT_INLIERS = 20
 
 // ---- (b) colour-pattern layout on the body grid ----
 
@@ -137,7 +138,11 @@ export function rankFish(cv: OpenCv, query: FishFeatures, references: Reference[
     for (const candidate of shortlist) {
       const referenceSet = candidate.reference.features.keypoints
       const referenceMat = descriptorMat(cv, referenceSet)
-      for (const q of queryMats) candidate.inliers = Math.max(candidate.inliers, verifiedMatches(cv, matcher, q.set, q.mat, referenceSet, referenceMat))
+      for (const q of queryMats) {
+        // The mirror image is tried only when the photo as taken did not already agree well.
+        if (candidate.inliers >= CONFIDENT_INLIERS) break
+        candidate.inliers = Math.max(candidate.inliers, verifiedMatches(cv, matcher, q.set, q.mat, referenceSet, referenceMat))
+      }
       referenceMat.delete()
     }
   }
@@ -152,11 +157,4 @@ export function rankFish(cv: OpenCv, query: FishFeatures, references: Reference[
     if (!current || score > current.score) bestPerFish.set(reference.fishId, { fishId: reference.fishId, score, referencePhotoId: reference.photoId, colour, inliers })
   }
   return [...bestPerFish.values()].sort((a, b) => b.score - a.score).slice(0, limit)
-}
-
-/** A score in words for the person confirming (thresholds tuned on the generated benchmark set). */
-export function similarityInWords(score: number): 'strong' | 'possible' | 'weak' {
-  if (score >= 0.6) return 'strong'
-  if (score >= 0.35) return 'possible'
-  return 'weak'
 }

@@ -1,8 +1,11 @@
 import cvModule from '@techstark/opencv-js'
 
-// OpenCV's WebAssembly build. Its export is a thenable that resolves to itself, so awaiting it (or
-// resolving a promise or returning from an async function with it) never settles: wait until the
-// runtime has put its classes in place, then hand the module out synchronously.
+// OpenCV's WebAssembly build; importing this file starts it (compiling 7 MB of WebAssembly), so code
+// that may not need it, like the demo seed with cached features, imports this file only when it does.
+// Its export is a thenable that resolves to itself, so awaiting it (or resolving a promise or
+// returning from an async function with it, or a dynamic import() whose namespace carries its
+// `then`) never settles: wait until the runtime has put its classes in place, then hand the module
+// out synchronously through `openCv()`.
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export type OpenCv = any
 
