@@ -6,6 +6,7 @@ import { pipeline } from 'node:stream/promises'
 import { eq, sql } from 'drizzle-orm'
 import type { ZipFile } from 'yauzl'
 import type { ValidatedArchive } from './archive-validate'
+import { upgradeLegacyEntries } from '../db/upgrade-entries'
 
 const BATCH = 500
 
@@ -111,11 +112,18 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
           for (const r of e.revisions.slice(1)) {
             await tx.update(schema.timelineEntries).set({ revision: r.revision, data: r.data, occurredAt: new Date(r.occurredAt) }).where(where)
           }
+          if (e.doses?.length) {
+            await tx.insert(schema.treatmentDoses).values(e.doses.map(d => ({
+              entryId: entryIds.get(e.id), doseNumber: d.doseNumber, givenAt: new Date(d.givenAt), givenById: author(d.givenBy), note: d.note, createdAt: new Date(d.createdAt),
+            })))
+          }
           if (e.enteredInError) {
             await tx.update(schema.timelineEntries).set({ enteredInError: true, errorReason: e.errorReason, errorById: e.errorBy ? author(e.errorBy) : null, errorAt: e.errorAt ? new Date(e.errorAt) : null }).where(where)
           }
         }
       })
+      // An archive made before procedure codes (and the other later forms) reads like a live write now.
+      await upgradeLegacyEntries(tx, sql`e.pond_id = ${newPondId}`)
       await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'off', true)`)
       await tx.execute(sql`select fintrail_refresh_measurement_summary(id) from fish where pond_id = ${newPondId}`)
       return newPondId
