@@ -31,6 +31,9 @@ export interface PondDetail {
   name: string
   volumeLitres: number | null
   notes: string
+  /** The yearly health check's month and day (MM-DD). */
+  healthCheckDay: string
+  waterTestIntervalDays: number
   role: PondRole
   /** Kept on after a handover to look, not to change: the client hides what the server would refuse. */
   readOnly: boolean

@@ -3,10 +3,13 @@
 // Values are stored in metric units; the typed text may be kept beside them in `entered`.
 import { z } from 'zod'
 
-/** Kinds a person writes through the timeline. 'photo' comes from the photos table; moves and owner changes come later. */
+/** Kinds a person writes through the timeline. 'photo' comes from the photos table, 'pond_event' from the pond's own events; moves and owner changes come later. */
 export const ENTRY_KINDS = ['measurement', 'observation', 'exam', 'problem', 'procedure', 'anaesthesia', 'treatment', 'lab_result', 'companion', 'death'] as const
 export type EntryKind = typeof ENTRY_KINDS[number]
-export const TIMELINE_KINDS = [...ENTRY_KINDS, 'photo', 'move', 'owner_change'] as const
+/** The kinds a timeline_entries row can have (the database enum). */
+export const STORED_TIMELINE_KINDS = [...ENTRY_KINDS, 'photo', 'move', 'owner_change'] as const
+/** What a fish's timeline shows: its stored entries and the whole-pond events of the ponds it lived in. */
+export const TIMELINE_KINDS = [...STORED_TIMELINE_KINDS, 'pond_event'] as const
 export type TimelineKind = typeof TIMELINE_KINDS[number]
 
 const limitedText = (max: number, missing = 'Enter text') => z.string(missing).trim().max(max, `At most ${max} characters`)

@@ -1,4 +1,4 @@
-import { boolean, index, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, index, integer, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { timestamps } from './columns'
 import { users } from './users'
 
@@ -9,6 +9,10 @@ export const ponds = pgTable('ponds', {
   name: varchar('name', { length: 120 }).notNull(),
   volumeLitres: numeric('volume_litres', { precision: 12, scale: 1, mode: 'number' }),
   notes: text('notes').notNull().default(''),
+  // The yearly health check falls on this month and day (MM-DD); spring by default.
+  healthCheckDay: varchar('health_check_day', { length: 5 }).notNull().default('04-01'),
+  // Days between water tests before one counts as overdue.
+  waterTestIntervalDays: integer('water_test_interval_days').notNull().default(7),
   ...timestamps,
 })
 
