@@ -38,7 +38,7 @@ export async function dueDetails(ponds: { userId: string } | { pondId: string },
     select p.id as pond_id, p.name as pond_name, p.health_check_day, p.water_test_interval_days,
       to_char(p.created_at at time zone 'UTC', 'YYYY-MM-DD') as since,
       (select to_char(max(v.visited_on), 'YYYY-MM-DD') from visits v where v.pond_id = p.id and v.purpose = 'health_check' and v.visited_on <= ${today}::date) as last_check_on,
-      ${lastWaterTestSql} as last_water_test_on
+      ${lastWaterTestSql(now)} as last_water_test_on
     from ponds p where ${pondFilter}`)).rows
   const rechecks = (await db.execute<RecheckRow>(sql`
     select p.id as pond_id, e.id as entry_id, f.id as fish_id, f.name as fish_name, e.kind::text as kind,
@@ -77,5 +77,6 @@ export function dueItemOf(detail: DueItemDetail): DueItem {
   }
 }
 
-// Until the water log lands there are no water tests: the pond's interval counts from the day it was added.
-const lastWaterTestSql = sql`null::text`
+// The last test up to the clock's moment (a test's clock may lie in the past of the tests already recorded).
+const lastWaterTestSql = (now: Date) => sql`(select to_char(max(w.tested_at) at time zone 'UTC', 'YYYY-MM-DD') from water_tests w
+  where w.pond_id = p.id and w.tested_at <= ${now.toISOString()}::timestamptz)`

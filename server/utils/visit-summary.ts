@@ -4,6 +4,7 @@ import { entryLine } from '#shared/utils/entry-lines'
 import { DUE_KIND_LABELS } from '#shared/utils/due'
 import { WHOLE_POND_EVENT_LABELS } from '#shared/utils/whole-pond-events'
 import { VISIT_PURPOSE_LABELS } from '#shared/utils/visits'
+import { WATER_PARAMETER_INFO, WATER_PARAMETERS } from '#shared/utils/water-targets'
 import { formatDate, formatDay } from '#shared/utils/dates'
 import type { Tx } from './db'
 
@@ -56,14 +57,28 @@ export async function visitSummary(visit: VisitRow, now: Date): Promise<VisitSum
     pondName: pond!.name,
     entries: lines,
     pondEvents: await pondEventViews(visit.pondId, { visitId: visit.id }),
-    waterTests: await visitWaterLines(visit.id),
+    waterTests: await visitWaterLines(visit.pondId, visit.id),
     due: await dueDetails({ pondId: visit.pondId }, now, 90),
   }
 }
 
-// Until the water log lands there are no water tests to link.
-async function visitWaterLines(_visitId: string): Promise<VisitWaterLine[]> {
-  return []
+/** The water tests made during the visit, each reading with its unit and its flag against the pond's targets. */
+async function visitWaterLines(pondId: string, visitId: string): Promise<VisitWaterLine[]> {
+  const rows = await useDb().select({ test: schema.waterTests, testedByName: schema.users.name }).from(schema.waterTests)
+    .innerJoin(schema.users, eq(schema.users.id, schema.waterTests.testedById))
+    .where(eq(schema.waterTests.visitId, visitId)).orderBy(asc(schema.waterTests.testedAt))
+  if (!rows.length) return []
+  const targets = await pondWaterTargets(pondId)
+  return rows.map(({ test, testedByName }) => {
+    const view = waterTestView(test, testedByName, targets)
+    const values = WATER_PARAMETERS.flatMap((parameter) => {
+      const value = view[parameter as keyof typeof view]
+      if (typeof value !== 'number') return []
+      const info = WATER_PARAMETER_INFO[parameter]
+      return [{ label: info.label, value: `${value.toFixed(info.decimals)} ${info.unit}`.trim(), flag: view.flags[parameter] ?? null }]
+    })
+    return { id: test.id, testedAt: test.testedAt.toISOString(), values }
+  })
 }
 
 /** The e-mail to the owner and keepers when the vet closes the visit. */

@@ -55,10 +55,19 @@ describe('what is due', () => {
     // Every item has exactly the documented fields.
     for (const item of items) expect(Object.keys(item).sort()).toEqual(item.fishId ? ['dueOn', 'fishId', 'kind', 'overdue', 'pondId', 'pondName'] : ['dueOn', 'kind', 'overdue', 'pondId', 'pondName'])
 
+    // A water test on 5 June moves the next one to 19 June (every 14 days), overdue from 20 June.
+    expect((await owner.client.post(`/api/ponds/${pond.id}/water-tests`, { testedAt: '2026-06-05T08:00:00Z', pH: 7.6 })).status).toBe(201)
+    expect((await dueAt(vet.client)).filter(i => i.pondId === pond.id && i.kind === 'water_test')).toEqual([
+      { pondId: pond.id, pondName: pond.name, kind: 'water_test', dueOn: '2026-06-19', overdue: false },
+    ])
+    expect((await dueAt(vet.client, '2026-06-25T09:00:00Z')).filter(i => i.pondId === pond.id && i.kind === 'water_test')).toEqual([
+      { pondId: pond.id, pondName: pond.name, kind: 'water_test', dueOn: '2026-06-19', overdue: true },
+    ])
+
     // The pond page shows everything, however far ahead: the next spring check (1 April 2027, the pond was added after this year's).
     const pondDue = await owner.client.get(`/api/ponds/${pond.id}/due`, fixedClock(NOW))
     expect(pondDue.body.items.map((i: { kind: string, dueOn: string }) => [i.kind, i.dueOn])).toEqual([
-      ['water_test', '2026-05-15'], ['recheck', TOMORROW], ['health_check', '2027-04-01'],
+      ['recheck', TOMORROW], ['water_test', '2026-06-19'], ['health_check', '2027-04-01'],
     ])
   })
 

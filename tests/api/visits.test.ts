@@ -51,6 +51,11 @@ describe('a vet visit', () => {
     const salt = await vet.client.post(`/api/ponds/${pond.id}/events`, { kind: 'salt', occurredAt: new Date().toISOString(), data: { percent: 0.3, amountKg: 15 } })
     expect(salt.status).toBe(201)
     expect(salt.body.event.visitId).toBe(visitId)
+    // Nitrite 0.5 mg/L NO2-N is above the 0.1 target and dissolved oxygen 4 mg/L below the 5 mg/L one (defaults from SRAC 464).
+    const water = await vet.client.post(`/api/ponds/${pond.id}/water-tests`, { testedAt: new Date().toISOString(), pH: 7.5, temperatureC: 18, nitriteNMgL: 0.5, dissolvedOxygenMgL: 4 })
+    expect(water.status, JSON.stringify(water.body)).toBe(201)
+    const keeperWater = await keeper.client.post(`/api/ponds/${pond.id}/water-tests`, { testedAt: new Date().toISOString(), pH: 7.4 })
+    expect(keeperWater.status).toBe(201)
 
     // Only the vet who opened it changes it.
     expect((await secondVet.client.patch(`/api/ponds/${pond.id}/visits/${visitId}`, { findings: 'x' })).status).toBe(403)
@@ -64,6 +69,7 @@ describe('a vet visit', () => {
     expect(summary.fishSeen).toEqual([{ id: fish.id, name: fish.name }])
     expect(summary.entries.map((e: { id: string }) => e.id).sort()).toEqual([scrape.body.entry.id, treated.body.entry.id].sort())
     expect(summary.pondEvents.map((e: { id: string }) => e.id)).toEqual([salt.body.event.id])
+    expect(summary.waterTests.map((w: { id: string }) => w.id)).toEqual([water.body.waterTest.id])
 
     // After closing, nothing more is linked.
     const after = await vet.client.post(`/api/fish/${fish.id}/timeline`, { kind: 'observation', occurredAt: new Date().toISOString(), data: { text: 'Calmer' } })
@@ -77,6 +83,9 @@ describe('a vet visit', () => {
       expect(mail.text).toContain(`- ${fish.name}: Lab result: skin scrape: Moderate Trichodina`)
       expect(mail.text).toContain(`- ${fish.name}: Treatment: Enrofloxacin, injection, 10 mg/kg`)
       expect(mail.text).toContain('Salt added to the pond')
+      expect(mail.text).toContain('Nitrite 0.50 mg/L NO2-N (HIGH)')
+      expect(mail.text).toContain('Dissolved oxygen 4.0 mg/L (LOW)')
+      expect(mail.text).toContain('pH 7.5,')
       expect(mail.text).not.toContain('Second opinion')
       expect(mail.text).not.toContain('Calmer')
       expect(mail.text).toContain(`/ponds/${pond.id}/visits/${visitId}`)

@@ -44,6 +44,7 @@ ALTER TABLE "users" ADD COLUMN "due_digest" boolean DEFAULT true NOT NULL;--> st
 ALTER TABLE "ponds" ADD COLUMN "health_check_day" varchar(5) DEFAULT '04-01' NOT NULL;--> statement-breakpoint
 ALTER TABLE "ponds" ADD COLUMN "water_test_interval_days" integer DEFAULT 7 NOT NULL;--> statement-breakpoint
 ALTER TABLE "timeline_entries" ADD COLUMN "visit_id" uuid;--> statement-breakpoint
+ALTER TABLE "water_tests" ADD COLUMN "visit_id" uuid;--> statement-breakpoint
 ALTER TABLE "due_digests" ADD CONSTRAINT "due_digests_user_id_users_id_fk" FOREIGN KEY ("user_id") REFERENCES "public"."users"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "pond_events" ADD CONSTRAINT "pond_events_pond_id_ponds_id_fk" FOREIGN KEY ("pond_id") REFERENCES "public"."ponds"("id") ON DELETE no action ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "pond_events" ADD CONSTRAINT "pond_events_author_id_users_id_fk" FOREIGN KEY ("author_id") REFERENCES "public"."users"("id") ON DELETE no action ON UPDATE no action;--> statement-breakpoint
@@ -62,4 +63,6 @@ CREATE INDEX "visits_pond_idx" ON "visits" USING btree ("pond_id","visited_on");
 CREATE INDEX "visits_vet_idx" ON "visits" USING btree ("vet_id");--> statement-breakpoint
 CREATE UNIQUE INDEX "visits_open_unique" ON "visits" USING btree ("pond_id","vet_id") WHERE "visits"."closed_at" is null;--> statement-breakpoint
 ALTER TABLE "timeline_entries" ADD CONSTRAINT "timeline_entries_visit_id_visits_id_fk" FOREIGN KEY ("visit_id") REFERENCES "public"."visits"("id") ON DELETE no action ON UPDATE no action;--> statement-breakpoint
-CREATE INDEX "timeline_visit_idx" ON "timeline_entries" USING btree ("visit_id");
+ALTER TABLE "water_tests" ADD CONSTRAINT "water_tests_visit_id_visits_id_fk" FOREIGN KEY ("visit_id") REFERENCES "public"."visits"("id") ON DELETE no action ON UPDATE no action;--> statement-breakpoint
+CREATE INDEX "timeline_visit_idx" ON "timeline_entries" USING btree ("visit_id");--> statement-breakpoint
+CREATE INDEX "water_tests_visit_idx" ON "water_tests" USING btree ("visit_id");
