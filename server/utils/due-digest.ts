@@ -7,6 +7,12 @@ export const DUE_DIGEST_JOB = 'due-digest'
 // Every morning at 06:00 UTC.
 export const DUE_DIGEST_CRON = '0 6 * * *'
 
+/** The origin for links in a mail sent by a job, which has no request to read it from. */
+export function configuredOrigin() {
+  const configured = String(useRuntimeConfig().appOrigin || '').split(',')[0]?.trim()
+  return configured || `http://127.0.0.1:${process.env.PORT ?? 3000}`
+}
+
 export function dueDigestText(name: string, items: DueItemDetail[], origin: string) {
   const lines = [`Good morning ${name},`, '', 'This is what is due in your ponds:', '']
   let pond = ''
@@ -40,7 +46,7 @@ export async function sendDueDigests(now: Date, origin: string) {
       const [claimed] = await tx.insert(schema.dueDigests).values({ userId: person.id, day }).onConflictDoNothing().returning()
       if (!claimed) return false
       const overdue = items.filter(i => i.overdue).length
-      await queueVisitMail(tx, {
+      await queueMail(tx, {
         to: person.email, kind: 'due-digest', subjectType: 'due-digest', subjectId: person.id,
         subject: `Due in your ponds: ${items.length} ${items.length === 1 ? 'item' : 'items'}${overdue ? `, ${overdue} overdue` : ''}`,
         text: dueDigestText(person.name, items, origin),

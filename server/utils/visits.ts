@@ -13,8 +13,3 @@ export function refuseUnlessOpenVisitOf(visit: typeof schema.visits.$inferSelect
   if (visit.vetId !== userId) throw createError({ statusCode: 403, statusMessage: 'Not allowed', message: 'Only the vet who opened this visit can change or close it' })
   if (visit.closedAt) throw createError({ statusCode: 409, statusMessage: 'Visit closed', message: 'This visit is closed' })
 }
-
-// TODO(outbox): replaced by queueMail from mail-outbox.ts when the outbox lands on main; until then it sends after commit.
-export async function queueVisitMail(_tx: unknown, message: { to: string, subject: string, text: string, kind: string, subjectType: string, subjectId: string }) {
-  setTimeout(() => sendMail({ to: message.to, subject: message.subject, text: message.text }).catch(error => console.error('[mail]', error)), 50)
-}

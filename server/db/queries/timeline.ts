@@ -65,7 +65,7 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
       order by ${at} desc, p.id desc limit ${n})`)
   }
   if (all || kinds.includes('pond_event')) {
-    // Whole-pond events of the ponds this fish has lived in, kept to the moments it lived there (migration 0016).
+    // Whole-pond events of the ponds this fish has lived in, kept to the moments it lived there (migration 0017).
     branches.push(sql`(select pe.id, 'pond_event'::text as kind, pe.occurred_at, pe.author_id,
         pe.data || jsonb_build_object('eventKind', pe.kind, 'volumeLitres', pe.volume_litres, 'pondId', pe.pond_id, 'pondName', pond.name) as data,
         1 as revision, pe.entered_in_error, pe.error_reason, pe.error_by_id, pe.error_at, 'subject'::text as viewpoint, null::uuid as other_fish_id,

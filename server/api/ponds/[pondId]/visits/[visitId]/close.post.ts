@@ -20,7 +20,7 @@ export default defineEventHandler(async (event) => {
       .where(and(eq(schema.memberships.pondId, pondId), inArray(schema.memberships.role, ['owner', 'keeper']), eq(schema.memberships.readOnly, false)))
     const subject = `${VISIT_PURPOSE_LABELS[summary.purpose]} at ${summary.pondName}, ${formatDay(summary.visitedOn)}: summary`
     const text = visitMailText(summary, `${appOrigin(event)}/ponds/${pondId}/visits/${visitId}`)
-    for (const { email } of recipients) await queueVisitMail(tx, { to: email, subject, text, kind: 'visit-summary', subjectType: 'visit', subjectId: visitId })
+    for (const { email } of recipients) await queueMail(tx, { to: email, subject, text, kind: 'visit-summary', subjectType: 'visit', subjectId: visitId })
     return { visit: summary, mailedTo: recipients.length }
   })
   return result
