@@ -4,8 +4,9 @@ import { DUE_DIGEST_CRON, DUE_DIGEST_JOB } from '../utils/due-digest'
 // a day however many times it restarts) that sends a job to this worker each morning.
 export default defineNitroPlugin(() => {
   if (import.meta.prerender) return
-  registerJob(DUE_DIGEST_JOB, async () => {
-    await sendDueDigests(new Date(), configuredOrigin())
+  // `now` is set only by the test route (server/api/test/due-digest.post.ts); the schedule sends no data.
+  registerJob<{ now?: string }>(DUE_DIGEST_JOB, async (data) => {
+    await sendDueDigests(data?.now ? new Date(data.now) : new Date(), configuredOrigin())
   }, { retryLimit: 3, retryDelay: 60, expireInSeconds: 600 })
   getBoss()
     .then(boss => boss.schedule(DUE_DIGEST_JOB, DUE_DIGEST_CRON, {}, { tz: 'UTC' }))

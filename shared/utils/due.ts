@@ -14,8 +14,11 @@ export const DUE_KIND_LABELS: Record<DueKind, string> = {
 
 /** The worklist and the digest look this far ahead; the pond page shows everything. */
 export const DUE_HORIZON_DAYS = 14
-/** A check more than half a year before the pond's check day belongs to the year before (common practice: one spring check a year). */
-export const HEALTH_CHECK_COUNTS_FROM_DAYS = 183
+/**
+ * A routine check up to three months before the pond's check day counts for that year; one earlier (an
+ * autumn check) does not replace the spring one. Our own rule for "one spring check a year" (common practice).
+ */
+export const HEALTH_CHECK_COUNTS_FROM_DAYS = 90
 
 export function addDays(day: string, days: number): string {
   const date = new Date(`${day.slice(0, 10)}T00:00:00Z`)
@@ -28,7 +31,7 @@ export function dayOf(moment: Date): string {
 }
 
 /**
- * The next yearly health check: the pond's check day (MM-DD) on or after half a year past the last
+ * The next yearly health check: the pond's check day (MM-DD) on or after three months past the last
  * routine check, or on or after the day the pond was added when it has had none.
  */
 export function nextHealthCheck(checkDay: string, lastCheckOn: string | null, pondSince: string): string {

@@ -114,9 +114,11 @@ describe('the daily digest', () => {
 
     // The test route is closed without the secret.
     expect((await owner.client.post('/api/test/due-digest', {})).status).toBe(404)
+    // The job the daily schedule sends, run by the pg-boss worker with the test's clock.
+    const { rows: schedules } = await testDb().query(`select cron, timezone from pgboss.schedule where name = 'due-digest'`)
+    expect(schedules).toEqual([{ cron: '0 6 * * *', timezone: 'UTC' }])
     const run = await owner.client.post('/api/test/due-digest', {}, fixedClock(NOW))
-    expect(run.status, JSON.stringify(run.body)).toBe(200)
-    expect(run.body.day).toBe(TODAY)
+    expect(run.status, JSON.stringify(run.body)).toBe(202)
     for (const person of [owner, vet]) {
       const mail = await waitForMail(person.email, m => m.subject.startsWith('Due in your ponds'))
       expect(mail.text).toContain(pond.name)
@@ -124,10 +126,11 @@ describe('the daily digest', () => {
       expect(mail.text).toContain('8 May 2026 (overdue): Water test')
     }
     // A second run on the same day sends nothing more to them.
-    expect((await owner.client.post('/api/test/due-digest', {}, fixedClock(NOW))).status).toBe(200)
+    expect((await owner.client.post('/api/test/due-digest', {}, fixedClock(NOW))).status).toBe(202)
     const { rows } = await testDb().query('select user_id from due_digests where day = $1 and user_id = any($2)', [TODAY, [owner.user.id, keeper.user.id, vet.user.id]])
     expect(rows.map(r => r.user_id).sort()).toEqual([owner.user.id, vet.user.id].sort())
-    await new Promise(r => setTimeout(r, 1000))
+    // Long enough for the second job to have run and its mail (if any) to have been delivered.
+    await new Promise(r => setTimeout(r, 5000))
     expect((await mailsTo(owner.email)).filter(m => m.subject.startsWith('Due in your ponds'))).toHaveLength(1)
     expect((await mailsTo(keeper.email)).filter(m => m.subject.startsWith('Due in your ponds'))).toEqual([])
   })
