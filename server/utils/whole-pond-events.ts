@@ -3,7 +3,7 @@ import type { PondEventView } from '#shared/types/pond-care'
 import type { Tx } from './db'
 
 /**
- * The fish living in the pond at the event's moment, through the one residence rule of migration 0017
+ * The fish living in the pond at the event's moment, through the one residence rule of migration 0018
  * (fintrail_fish_pond_at). Candidates are the fish there now and those with a move into or out of it.
  */
 export function residentFishSql(pondId: string, moment: SQL) {
