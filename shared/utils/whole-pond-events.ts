@@ -30,15 +30,19 @@ const required = (max: number, missing: string) => text(max).min(1, missing)
 const positive = (what: string, max: number, unit: string) => z.number(`Enter the ${what} as a number`)
   .positive(`The ${what} must be more than 0`).max(max, `More than ${max} ${unit} is not a possible ${what}`)
 
-// A keeper (or owner) records a pond treatment given on a vet's instruction and names the vet.
-const onInstruction = text(120).optional()
+// A keeper or owner records a pond treatment given on the instruction of one of the pond's vets, chosen by id
+// (the fish treatment rule); the server writes that vet's name beside it.
+const onInstruction = {
+  instructedById: z.uuid('Choose one of the pond’s vets').optional(),
+  instructedBy: text(120).optional(),
+}
 
 export const saltEventData = z.strictObject({
   // Salt for a pond is a few tenths of a percent; 3 % is a short dip, never a pond (common practice).
   percent: positive('salt level', 3, '%'),
   amountKg: positive('amount of salt', 100_000, 'kg'),
   product: text(160).default('Salt (sodium chloride)'),
-  givenOnInstructionOf: onInstruction,
+  ...onInstruction,
   notes: text(4000).default(''),
 })
 
@@ -49,7 +53,7 @@ export const bathEventData = z.strictObject({
   amount: positive('amount used', 10_000_000, 'units'),
   amountUnit: z.enum(BATH_AMOUNT_UNITS, 'Choose mg, g, kg, mL or L'),
   durationHours: positive('duration', 24 * 60, 'hours').optional(),
-  givenOnInstructionOf: onInstruction,
+  ...onInstruction,
   notes: text(4000).default(''),
 })
 

@@ -31,9 +31,11 @@ describe('a whole-pond event reaches exactly the fish living in the pond at that
     const arrival = await createFish(owner.client, lower.id, { name: 'Arrival' })
     await move(owner.client, leaver.id, lower.id)
 
-    const salted = await owner.client.post(`/api/ponds/${upper.id}/events`, { ...saltFor5000, occurredAt: new Date().toISOString(), data: { ...saltFor5000.data, givenOnInstructionOf: 'Dr Vale' } })
-    expect(salted.status, JSON.stringify(salted.body)).toBe(403) // an owner is not a vet, and the rule is the fish treatment rule
+    // The fish treatment rule: an owner records a pond treatment only on the instruction of one of the pond's vets.
     const vet = await signedInUser({ name: 'Dr Vale' })
+    const salted = await owner.client.post(`/api/ponds/${upper.id}/events`, { ...saltFor5000, occurredAt: new Date().toISOString(), data: { ...saltFor5000.data, instructedById: vet.user.id } })
+    expect(salted.status, JSON.stringify(salted.body)).toBe(400) // not yet a vet of this pond
+    expect(salted.body.data.fieldErrors['data.instructedById']).toEqual(['Choose one of the pond’s vets'])
     await addMember(upper.id, vet.user.id, 'vet')
     const given = await vet.client.post(`/api/ponds/${upper.id}/events`, { ...saltFor5000, occurredAt: new Date().toISOString() })
     expect(given.status, JSON.stringify(given.body)).toBe(201)
@@ -75,10 +77,12 @@ describe('who may record a whole-pond event', () => {
     const { owner, keeper, vet, outsider, pond } = await pondWithRoles()
     const now = () => new Date().toISOString()
     const keeperBare = await keeper.client.post(`/api/ponds/${pond.id}/events`, { ...saltFor5000, occurredAt: now() })
-    expect(keeperBare.status).toBe(403)
-    expect(keeperBare.body.data.fieldErrors['data.givenOnInstructionOf']).toBeTruthy()
-    const keeperOnInstruction = await keeper.client.post(`/api/ponds/${pond.id}/events`, { ...saltFor5000, occurredAt: now(), data: { ...saltFor5000.data, givenOnInstructionOf: 'Dr Vet' } })
+    expect(keeperBare.status).toBe(400)
+    expect(keeperBare.body.data.fieldErrors['data.instructedById']).toBeTruthy()
+    const keeperOnInstruction = await keeper.client.post(`/api/ponds/${pond.id}/events`, { ...saltFor5000, occurredAt: now(), data: { ...saltFor5000.data, instructedById: vet.user.id, instructedBy: 'Somebody else' } })
     expect(keeperOnInstruction.status, JSON.stringify(keeperOnInstruction.body)).toBe(201)
+    // The vet's name comes from the pond's membership, never from the body.
+    expect(keeperOnInstruction.body.event.data).toMatchObject({ instructedById: vet.user.id, instructedBy: 'Vet' })
     expect((await vet.client.post(`/api/ponds/${pond.id}/events`, { kind: 'bath', occurredAt: now(), data: { drug: 'Potassium permanganate', concentration: 2, concentrationUnit: 'mg/L', amount: 10, amountUnit: 'g' } })).status).toBe(201)
     expect((await owner.client.post(`/api/ponds/${pond.id}/events`, { kind: 'water_change', occurredAt: now(), data: { litresChanged: 500 } })).status).toBe(201)
     expect((await outsider.client.post(`/api/ponds/${pond.id}/events`, { kind: 'water_change', occurredAt: now(), data: { litresChanged: 500 } })).status).toBe(404)

@@ -1,4 +1,4 @@
-import { eq } from 'drizzle-orm'
+import { and, eq } from 'drizzle-orm'
 import { pondIdParams } from '#shared/utils/pond-schemas'
 import { pondEventCreateSchema, pondEventDecision, pondEventWarnings, isPondTreatment } from '#shared/utils/whole-pond-events'
 
@@ -8,7 +8,14 @@ export default defineEventHandler(async (event) => {
   const input = await readValidated(event, pondEventCreateSchema)
   const decision = pondEventDecision(role, input.kind, input.data)
   if (!decision.allowed) {
-    throw createError({ statusCode: 403, statusMessage: 'Not allowed', message: decision.message, data: { fieldErrors: decision.field ? { [decision.field]: [decision.message] } : {} } })
+    throw createError({ statusCode: decision.status ?? 403, statusMessage: 'Not allowed', message: decision.message, data: { fieldErrors: decision.field ? { [decision.field]: [decision.message] } : {} } })
+  }
+  const data: Record<string, unknown> = { ...input.data }
+  delete data.instructedBy // written here from the id, never taken from the body
+  if (typeof data.instructedById === 'string') {
+    const vet = await vetOfPond(pondId, data.instructedById)
+    if (!vet) throw badEntry({ 'data.instructedById': ['Choose one of the pond’s vets'] })
+    data.instructedBy = vet.name
   }
   const [pond] = await useDb().select({ volumeLitres: schema.ponds.volumeLitres }).from(schema.ponds).where(eq(schema.ponds.id, pondId))
   const volumeLitres = input.volumeLitres ?? pond?.volumeLitres ?? null
@@ -35,7 +42,7 @@ export default defineEventHandler(async (event) => {
     const [row] = await tx.insert(schema.pondEvents).values({
       ...(input.id ? { id: input.id } : {}),
       pondId, kind: input.kind, occurredAt: new Date(input.occurredAt), authorId: user.id,
-      visitId: await openVisitId(tx, pondId, user.id), volumeLitres, data: input.data,
+      visitId: await openVisitId(tx, pondId, user.id), volumeLitres, data,
     }).returning({ id: schema.pondEvents.id })
     return { id: row!.id, created: true }
   })
@@ -43,3 +50,11 @@ export default defineEventHandler(async (event) => {
   const [view] = await pondEventViews(pondId, { eventId: saved.id })
   return { event: view }
 })
+
+/** A vet of this pond (read-only ones included: an earlier instruction stays traceable), or undefined. */
+async function vetOfPond(pondId: string, userId: string) {
+  const [vet] = await useDb().select({ name: schema.users.name }).from(schema.memberships)
+    .innerJoin(schema.users, eq(schema.users.id, schema.memberships.userId))
+    .where(and(eq(schema.memberships.pondId, pondId), eq(schema.memberships.userId, userId), eq(schema.memberships.role, 'vet')))
+  return vet
+}
