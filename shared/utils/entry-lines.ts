@@ -1,5 +1,5 @@
 // One line of words for a timeline entry, for a visit summary and its e-mail: what was done, not every field.
-import { isEnucleation } from './timeline-schemas'
+import { isEnucleation } from './timeline-derived'
 
 type Data = Record<string, any> // eslint-disable-line @typescript-eslint/no-explicit-any
 
@@ -18,8 +18,8 @@ export function entryLine(kind: string, data: Data): string {
     case 'problem':
       return `Problem: ${data.name} (${data.status})`
     case 'procedure': {
-      const side = SIDE_WORDS[data.side] ? `, ${SIDE_WORDS[data.side]}${isEnucleation(String(data.name)) ? ' eye' : ''}` : ''
-      return `Procedure: ${data.name}${side}${data.bodySite ? ` (${data.bodySite})` : ''}${data.outcome ? `. Outcome: ${data.outcome}` : ''}${data.recheckOn ? `. Recheck on ${data.recheckOn}` : ''}`
+      const side = SIDE_WORDS[data.side] ? `, ${SIDE_WORDS[data.side]}${isEnucleation(data) ? ' eye' : ''}` : ''
+      return `Procedure: ${data.name || String(data.code ?? '').replaceAll('_', ' ')}${side}${data.bodySite ? ` (${data.bodySite})` : ''}${data.outcome ? `. Outcome: ${data.outcome}` : ''}${data.recheckOn ? `. Recheck on ${data.recheckOn}` : ''}`
     }
     case 'anaesthesia':
       return `Anaesthesia: ${data.agent} at ${data.concentrationMgL} mg/L${data.recoveryMinutes != null ? `, recovered in ${data.recoveryMinutes} min` : ''}`

@@ -193,6 +193,8 @@ export const treatmentData = z.strictObject({
   instructedById: personId('Choose one of the pond’s vets').optional(),
   /** The instructing vet's name, written by the server from `instructedById`. */
   instructedBy: limitedText(120).optional(),
+  // When the vet wants to see the fish again; it shows in what is due until an exam on a later day.
+  recheckOn: calendarDay.optional(),
   notes: limitedText(4000).default(''),
 }).superRefine((d, ctx) => {
   const issue = (path: string, message: string) => ctx.addIssue({ code: 'custom', path: [path], message })

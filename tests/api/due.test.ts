@@ -25,7 +25,7 @@ async function dueAt(client: ApiClient, now = NOW) {
 
 async function procedureWithRecheck(vet: ApiClient, fishId: string, occurredAt: string, recheckOn: string) {
   const response = await vet.post(`/api/fish/${fishId}/timeline`, {
-    kind: 'procedure', occurredAt, data: { name: 'Mass removal', bodySite: 'flank', side: 'left', surgeon: 'Dr Test', recheckOn },
+    kind: 'procedure', occurredAt, data: { code: 'mass_removal', name: 'Mass removal', bodySite: 'flank', side: 'left', recheckOn },
   })
   expect(response.status, JSON.stringify(response.body)).toBe(201)
   return response.body.entry.id as string
@@ -69,6 +69,29 @@ describe('what is due', () => {
     expect(pondDue.body.items.map((i: { kind: string, dueOn: string }) => [i.kind, i.dueOn])).toEqual([
       ['recheck', TOMORROW], ['water_test', '2026-06-19'], ['health_check', '2027-04-01'],
     ])
+  })
+
+  it('lists the next dose of a scheduled course and the recheck set on the treatment', async () => {
+    const { vet, pond, fish } = await pondWithRoles()
+    await setCreated(pond.id, '2026-05-01')
+    // Three doses 24 hours apart from 9 June 08:00: at 10 June 09:00 dose 1 is given, dose 2 (10 June 08:00) has
+    // passed without being recorded (missed), dose 3 is due on 11 June 08:00.
+    const course = await vet.client.post(`/api/fish/${fish.id}/timeline`, {
+      kind: 'treatment', occurredAt: '2026-06-09T08:00:00Z',
+      data: { drug: 'Enrofloxacin', route: 'injection', injectionSite: 'intramuscular', dose: 10, doseUnit: 'mg/kg', startOn: '2026-06-09', doseCount: 3, intervalHours: 24, firstDoseAt: '2026-06-09T08:00:00Z', recheckOn: '2026-06-20' },
+    })
+    expect(course.status, JSON.stringify(course.body)).toBe(201)
+    expect((await vet.client.post(`/api/timeline/${course.body.entry.id}/doses`, { doseNumber: 1, givenAt: '2026-06-09T08:05:00Z' })).status).toBe(201)
+    const ofFish = (await dueAt(vet.client)).filter(i => i.fishId === fish.id)
+    expect(ofFish).toEqual([
+      { pondId: pond.id, pondName: pond.name, fishId: fish.id, kind: 'treatment_dose', dueOn: '2026-06-11', overdue: false },
+      { pondId: pond.id, pondName: pond.name, fishId: fish.id, kind: 'recheck', dueOn: '2026-06-20', overdue: false },
+    ])
+    const worklist = await vet.client.get('/api/due/worklist', fixedClock(NOW))
+    expect(worklist.body.items.find((i: { kind: string }) => i.kind === 'treatment_dose').about).toBe('dose 3 of 3 of Enrofloxacin, 1 missed')
+    // Once the last dose is given the course leaves the list.
+    expect((await vet.client.post(`/api/timeline/${course.body.entry.id}/doses`, { doseNumber: 3, givenAt: '2026-06-10T08:30:00Z' })).status).toBe(201)
+    expect((await dueAt(vet.client)).filter(i => i.fishId === fish.id).map(i => i.kind)).toEqual(['recheck'])
   })
 
   it('moves the spring check with the pond setting and a routine visit', async () => {

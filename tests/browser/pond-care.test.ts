@@ -36,7 +36,7 @@ describe('the vet’s worklist, visits and whole-pond events in Chromium', () =>
     const whitlock = await pondNamed(api, 'Whitlock koi pond')
     const ghost = whitlock.fish.find(f => f.name === 'Ghost')!
     const recheck = await api.post(`/api/fish/${ghost.id}/timeline`, {
-      kind: 'procedure', occurredAt: day(0), data: { name: 'Wound debridement', bodySite: 'right flank', side: 'right', surgeon: 'Dr Ada Okafor', recheckOn: day(1) },
+      kind: 'procedure', occurredAt: day(0), data: { code: 'wound_care', name: 'Wound debridement', bodySite: 'right flank', side: 'right', recheckOn: day(1) },
     })
     expect(recheck.status, JSON.stringify(recheck.body)).toBe(201)
 
@@ -56,6 +56,7 @@ describe('the vet’s worklist, visits and whole-pond events in Chromium', () =>
     await page.waitForURL(`**/ponds/${whitlock.pond.id}`)
     await expect(page.getByTestId('pond-name').innerText()).resolves.toBe('Whitlock koi pond')
     await page.getByTestId('pond-due').getByText('Ghost').first().waitFor()
+    await page.getByTestId('pond-visits').waitFor()
 
     // Salt for the whole pond: the amount that does not match the level is questioned first.
     await page.getByTestId('add-pond-event').click()
