@@ -25,7 +25,7 @@ async function dueAt(client: ApiClient, now = NOW) {
 
 async function procedureWithRecheck(vet: ApiClient, fishId: string, occurredAt: string, recheckOn: string) {
   const response = await vet.post(`/api/fish/${fishId}/timeline`, {
-    kind: 'procedure', occurredAt, data: { code: 'mass_removal', name: 'Mass removal', bodySite: 'flank', side: 'left', recheckOn },
+    kind: 'procedure', occurredAt, data: { code: 'mass_removal', name: 'Mass removal', bodySite: 'flank', side: 'left', performedBy: 'Dr Test', recheckOn },
   })
   expect(response.status, JSON.stringify(response.body)).toBe(201)
   return response.body.entry.id as string

@@ -36,7 +36,7 @@ describe('the vet’s worklist, visits and whole-pond events in Chromium', () =>
     const whitlock = await pondNamed(api, 'Whitlock koi pond')
     const ghost = whitlock.fish.find(f => f.name === 'Ghost')!
     const recheck = await api.post(`/api/fish/${ghost.id}/timeline`, {
-      kind: 'procedure', occurredAt: day(0), data: { code: 'wound_care', name: 'Wound debridement', bodySite: 'right flank', side: 'right', recheckOn: day(1) },
+      kind: 'procedure', occurredAt: day(0), data: { code: 'wound_care', name: 'Wound debridement', bodySite: 'right flank', side: 'right', performedBy: 'Dr Ada Okafor', recheckOn: day(1) },
     })
     expect(recheck.status, JSON.stringify(recheck.body)).toBe(201)
 
