@@ -233,10 +233,10 @@ export function encodeCursor(row: { cursor_at: string, id: string }) {
   return Buffer.from(`${row.cursor_at}|${row.id}`).toString('base64url')
 }
 
-export function decodeCursor(cursor: string | undefined) {
+export function decodeCursor(cursor: string | undefined, field = 'before') {
   if (!cursor) return null
   const [at, id] = Buffer.from(cursor, 'base64url').toString('utf8').split('|')
   const wellFormed = at && id && /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z$/.test(at) && /^[0-9a-f-]{36}$/i.test(id)
-  if (!wellFormed) throw badEntry({ before: ['Not a page marker from this timeline'] })
+  if (!wellFormed) throw badEntry({ [field]: ['Not a page marker from this timeline'] })
   return { at, id }
 }

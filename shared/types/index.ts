@@ -52,6 +52,8 @@ export interface FishListItem {
   microchip: string | null
   status: FishStatus
   profilePhotoId: string | null
+  /** Where the fish's head is on its profile photo, in percent across and down; null keeps the centre. */
+  profileFocus: PhotoFocus | null
   latestWeightG: number | null
   latestLengthCm: number | null
   latestConditionK: number | null
@@ -78,6 +80,7 @@ export interface FishProfile {
   features: string
   status: FishStatus
   profilePhotoId: string | null
+  profileFocus: PhotoFocus | null
   version: number
   createdAt: string
   updatedAt: string
@@ -123,3 +126,5 @@ export interface FishPhotos {
   canUpload: boolean
   canSetProfile: boolean
 }
+
+export interface PhotoFocus { x: number, y: number }

@@ -65,6 +65,20 @@ describe('gallery', () => {
     const elsewhere = await addPhoto({ bytes: first.bytes, fishId: otherFish.id })
     expect(elsewhere.id).not.toBe(first.id)
   })
+
+  it('keeps the caption typed with the second upload of the same photo', async () => {
+    const fish = await createFish(client('owner'), world.pond.id)
+    const first = await addPhoto({ fishId: fish.id })
+    const captionOf = async () => (await photoRows('id = $1', [first.id]))[0]!.caption
+    expect(await captionOf()).toBe('')
+    expect(await addPhoto({ fishId: fish.id, bytes: first.bytes, caption: 'Red patch behind the head' })).toMatchObject({ id: first.id, duplicate: 'yes' })
+    expect(await captionOf()).toBe('Red patch behind the head')
+    await addPhoto({ fishId: fish.id, bytes: first.bytes, caption: 'Seen from above at the spring check' })
+    expect(await captionOf()).toBe('Red patch behind the head — Seen from above at the spring check')
+    // The same words again add nothing.
+    await addPhoto({ fishId: fish.id, bytes: first.bytes, caption: 'Red patch behind the head' })
+    expect(await captionOf()).toBe('Red patch behind the head — Seen from above at the spring check')
+  })
 })
 
 describe('view and caption', () => {

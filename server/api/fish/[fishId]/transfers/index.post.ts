@@ -1,4 +1,5 @@
 import { and, eq, isNull } from 'drizzle-orm'
+import { formatDate } from '#shared/utils/dates'
 import { fishIdParams } from '#shared/utils/fish-schemas'
 import { fishTransferCreateSchema, HANDOVER_LIFETIME_DAYS, type FishTransferOffer } from '#shared/utils/custody-schemas'
 
@@ -30,7 +31,7 @@ export default defineEventHandler(async (event): Promise<FishTransferOffer> => {
   await sendMail({
     to: input.email,
     subject: `${user.name} offers you the fish "${fish.name}" on Fintrail`,
-    text: `Hello,\n\n${user.name} would like to rehome the ${fish.species} "${fish.name}" with you on Fintrail. It comes with its whole history: every entry, photo and companion note.\n\nNothing changes until you accept. Open this link to accept it into one of your ponds (valid for ${HANDOVER_LIFETIME_DAYS} days). If you have no account yet, you can create one there with this e-mail address:\n\n${appOrigin(event)}/transfers/${token}\n`,
+    text: `Hello,\n\n${user.name} would like to rehome the ${fish.species} "${fish.name}" with you on Fintrail. It comes with its whole history: every entry, photo and companion note.\n\nNothing changes until you accept. Open this link to accept it into one of your ponds; the offer expires on ${formatDate(offer.expiresAt, requestDateStyle(event))} (in ${HANDOVER_LIFETIME_DAYS} days). If you have no account yet, you can create one there with this e-mail address:\n\n${appOrigin(event)}/transfers/${token}\n`,
   })
   setResponseStatus(event, 201)
   return { id: offer.id, email: offer.toEmail, expiresAt: offer.expiresAt.toISOString(), createdAt: offer.createdAt.toISOString() }

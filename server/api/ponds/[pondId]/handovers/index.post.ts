@@ -1,6 +1,7 @@
 import { and, eq, isNull, sql } from 'drizzle-orm'
 import { HANDOVER_LIFETIME_DAYS, HANDOVER_MEMBERS_WORDS, handoverCreateSchema, type HandoverOffer } from '#shared/utils/custody-schemas'
 import { pondIdParams } from '#shared/utils/pond-schemas'
+import { formatDate } from '#shared/utils/dates'
 
 export default defineEventHandler(async (event): Promise<HandoverOffer> => {
   const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
@@ -31,7 +32,7 @@ export default defineEventHandler(async (event): Promise<HandoverOffer> => {
   await sendMail({
     to: input.email,
     subject: `${user.name} offers you the pond "${pond!.name}" on Fintrail`,
-    text: `Hello,\n\n${user.name} would like to hand the pond "${pond!.name}" over to you on Fintrail: you would become its owner, with its ${fishCount} fish and their whole history.\n\nWhat happens to the people now in the pond: ${HANDOVER_MEMBERS_WORDS[input.membersOption].label.toLowerCase()}. ${HANDOVER_MEMBERS_WORDS[input.membersOption].detail}\n\nNothing changes until you accept. Open this link to accept (valid for ${HANDOVER_LIFETIME_DAYS} days). If you have no account yet, you can create one there with this e-mail address:\n\n${appOrigin(event)}/handovers/${token}\n`,
+    text: `Hello,\n\n${user.name} would like to hand the pond "${pond!.name}" over to you on Fintrail: you would become its owner, with its ${fishCount} fish and their whole history.\n\nWhat happens when you accept: ${HANDOVER_MEMBERS_WORDS[input.membersOption].forRecipient(user.name)}\n\nNothing changes until you accept. Open this link to accept; the offer expires on ${formatDate(offer.expiresAt, requestDateStyle(event))} (in ${HANDOVER_LIFETIME_DAYS} days). If you have no account yet, you can create one there with this e-mail address:\n\n${appOrigin(event)}/handovers/${token}\n`,
   })
   setResponseStatus(event, 201)
   return { id: offer.id, email: offer.toEmail, membersOption: offer.membersOption, expiresAt: offer.expiresAt.toISOString(), createdAt: offer.createdAt.toISOString() }

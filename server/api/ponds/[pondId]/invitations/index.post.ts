@@ -1,4 +1,5 @@
 import { eq } from 'drizzle-orm'
+import { formatDate } from '#shared/utils/dates'
 import { invitationCreateSchema, pondIdParams } from '#shared/utils/pond-schemas'
 
 const INVITATION_LIFETIME_MS = 14 * 24 * 60 * 60 * 1000
@@ -17,7 +18,7 @@ export default defineEventHandler(async (event) => {
   await sendMail({
     to: input.email,
     subject: `${user.name} invites you to the pond "${pond!.name}" on Fintrail`,
-    text: `Hello,\n\n${user.name} invites you to join the pond "${pond!.name}" on Fintrail as ${input.role}.\n\nOpen this link to accept (valid for 14 days). If you have no account yet, you can create one there with this e-mail address:\n\n${link}\n`,
+    text: `Hello,\n\n${user.name} invites you to join the pond "${pond!.name}" on Fintrail as ${input.role}.\n\nOpen this link to accept; the invitation expires on ${formatDate(invitation!.expiresAt, requestDateStyle(event))}. If you have no account yet, you can create one there with this e-mail address:\n\n${link}\n`,
   })
   await recordAudit(event, { pondId, action: 'invitation.sent', details: { invitationId: invitation!.id, email: input.email, role: input.role } })
   setResponseStatus(event, 201)
