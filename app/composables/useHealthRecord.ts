@@ -13,11 +13,12 @@ export interface HealthRecordEntries {
  * page by page in keyset order up to the record's `asOf`, so neither the server render nor any one
  * response grows with a long life (5,000 entries are ten requests of 500).
  */
-export async function useHealthRecord(fishId: MaybeRefOrGetter<string>) {
-  // The head first: its `asOf` fixes which entries the pages hold.
-  const summary = await useFetch<HealthRecordSummary>(() => `/api/fish/${toValue(fishId)}/record`, { key: `fish-record-${toValue(fishId)}` })
+export function useHealthRecord(fishId: MaybeRefOrGetter<string>) {
+  const summary = useFetch<HealthRecordSummary>(() => `/api/fish/${toValue(fishId)}/record`, { key: `fish-record-${toValue(fishId)}` })
   const loaded = ref(0)
   const entries = useAsyncData<HealthRecordEntries>(`fish-record-entries-${toValue(fishId)}`, async () => {
+    // The head first: its `asOf` fixes which entries the pages hold.
+    await summary
     const head = summary.data.value
     if (!head) return { entries: [], stoppedBecause: 'the record could not be opened' }
     const all: TimelineEntryView[] = []
@@ -37,6 +38,6 @@ export async function useHealthRecord(fishId: MaybeRefOrGetter<string>) {
       }
     } while (after)
     return { entries: all, stoppedBecause: null }
-  }, { server: false, lazy: true, watch: [() => summary.data.value?.asOf] })
+  }, { server: false, lazy: true })
   return { summary, entries, loaded }
 }

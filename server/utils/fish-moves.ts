@@ -23,7 +23,7 @@ export async function companionsLeftBehind(db: { execute: Tx['execute'] }, fish:
 
 /** Members of the pond the fish leaves who are not members of the pond it goes to: they lose sight of it. */
 export async function membersLosingSight(db: { execute: Tx['execute'] }, fromPondId: string, toPondId: string): Promise<MemberLosingSight[]> {
-  const result = await db.execute<MemberLosingSight>(sql`
+  const result = await db.execute<{ id: string, name: string, role: string }>(sql`
     select u.id, u.name, m.role::text as role
     from memberships m join users u on u.id = m.user_id
     where m.pond_id = ${fromPondId}

@@ -1,4 +1,3 @@
-import { PROFILE_PHOTO_ROLES as SHARED_PROFILE_PHOTO_ROLES } from '#shared/utils/photo-schemas'
 import type { H3Event } from 'h3'
 import { and, eq } from 'drizzle-orm'
 import type { CurrentUser, PhotoItem, PondRole } from '#shared/types'
@@ -8,7 +7,6 @@ export type PhotoRow = typeof schema.photos.$inferSelect
 
 // Owners photograph their fish, keepers record photos, vets photograph at exams.
 export const PHOTO_ADD_ROLES: readonly PondRole[] = ['owner', 'keeper', 'vet']
-export const PROFILE_PHOTO_ROLES: readonly PondRole[] = SHARED_PROFILE_PHOTO_ROLES
 
 export function mayRemovePhoto(photo: Pick<PhotoRow, 'uploaderId'>, user: CurrentUser, role: PondRole) {
   return role === 'owner' || photo.uploaderId === user.id

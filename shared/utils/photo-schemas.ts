@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { PHOTO_VIEWS } from '../types'
+import { PHOTO_VIEWS, type PondRole } from '../types'
 
 export const PHOTO_VIEW_LABELS: Record<typeof PHOTO_VIEWS[number], string> = {
   top: 'From above',
@@ -18,7 +18,7 @@ export const photoUpdateSchema = z.strictObject({ view: view.optional(), caption
 const percent = (axis: string) => z.number(`Give the ${axis} position as a number`).int('A whole percent').min(0, 'At least 0 %').max(100, 'At most 100 %')
 
 /** Who may choose a fish's profile picture and where its head is on it. */
-export const PROFILE_PHOTO_ROLES = ['owner', 'keeper'] as const
+export const PROFILE_PHOTO_ROLES: readonly PondRole[] = ['owner', 'keeper']
 
 export const profilePhotoSchema = z.strictObject({
   photoId: z.uuid('Not a valid photo id').nullable(),
