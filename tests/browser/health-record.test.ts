@@ -48,8 +48,8 @@ describe('printable health record', () => {
       kind: 'anaesthesia', occurredAt: '2026-05-02',
       data: { agent: 'MS-222 (tricaine methanesulfonate)', concentrationMgL: 100, buffer: 'sodium bicarbonate', waterTemperatureC: 18, inductionMinutes: 4, recoveryMinutes: 41 },
     })
-    await addEntry(world.vet.client, fish.id, { kind: 'procedure', occurredAt: '2026-05-02', data: { name: 'enucleation', bodySite: 'eye', side: 'left', surgeon: 'Dr Test Vet', outcome: 'Recovered well', anaesthesiaEntryId: anaesthesia.entry.id } })
-    await addEntry(world.vet.client, fish.id, { kind: 'procedure', occurredAt: '2026-06-10', data: { name: 'mass removal', bodySite: 'dorsal fin base', side: 'right', surgeon: 'Dr Test Vet', outcome: 'Margins clear' } })
+    await addEntry(world.vet.client, fish.id, { kind: 'procedure', occurredAt: '2026-05-02', data: { code: 'enucleation', name: 'enucleation', bodySite: 'eye', side: 'left', performedBy: 'Dr Test Vet', outcome: 'Recovered well', anaesthesiaEntryId: anaesthesia.entry.id } })
+    await addEntry(world.vet.client, fish.id, { kind: 'procedure', occurredAt: '2026-06-10', data: { code: 'mass_removal', name: 'mass removal', bodySite: 'dorsal fin base', side: 'right', performedBy: 'Dr Test Vet', outcome: 'Margins clear' } })
 
     const page = await browser.newPage()
     await signIn(page, world.owner.email, world.owner.password)
@@ -98,7 +98,7 @@ describe('printable health record', () => {
             when i % 8 = 2 then jsonb_build_object('reason', 'Check ' || i, 'findings', '[]'::jsonb, 'assessment', 'Healthy')
             when i % 8 = 3 then jsonb_build_object('panel', 'haematology', 'analytes', jsonb_build_array(jsonb_build_object('name', 'Packed cell volume', 'value', 30, 'unit', '%', 'low', 24, 'high', 43)), 'intervalSource', 'Tripathi et al. 2004')
             when i % 8 = 4 then jsonb_build_object('agent', 'MS-222 (tricaine methanesulfonate)', 'concentrationMgL', 100, 'buffer', 'sodium bicarbonate', 'recoveryMinutes', 12)
-            else jsonb_build_object('drug', 'Salt (sodium chloride)', 'route', 'bath', 'dose', 3, 'doseUnit', 'g/L', 'startOn', '2006-01-02', 'durationDays', 3)
+            else jsonb_build_object('drug', 'Salt (sodium chloride)', 'route', 'tank_bath', 'dose', 3, 'doseUnit', 'g/L', 'startOn', '2006-01-02', 'durationDays', 3)
           end
         from generate_series(1, 4999) i
         returning id, occurred_at, data, author_id

@@ -1,7 +1,7 @@
 // The health record's read queries: every entry of the fish up to the moment the record is printed,
 // oldest first, read in keyset pages so a fish with thousands of entries never loads in one piece.
 import { sql } from 'drizzle-orm'
-import type { TimelineCursor } from './timeline'
+import { dosesOf, type TimelineCursor } from './timeline'
 
 const CURSOR_TEXT = sql.raw(`'YYYY-MM-DD"T"HH24:MI:SS.US"Z"'`)
 
@@ -27,7 +27,7 @@ export function recordPageSql(fishId: string, options: { asOf: string, cursor: T
   const after = options.cursor ? sql`and (e.occurred_at, e.id) > (${options.cursor.at}::timestamptz, ${options.cursor.id}::uuid)` : sql``
   return sql`
     select page.*, to_char(page.occurred_at at time zone 'UTC', ${CURSOR_TEXT}) as cursor_at,
-      author.name as author_name, marker.name as error_by_name, other.name as other_fish_name
+      author.name as author_name, marker.name as error_by_name, other.name as other_fish_name, ${dosesOf(sql`page`)} as doses
     from (
       (select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
           e.error_by_id, e.error_at, 'subject'::text as viewpoint, e.related_fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
