@@ -34,7 +34,7 @@ async function readRecord(fishId: string, limit?: number) {
 describe('the health record', () => {
   it('holds every kind a vet writes — exams, lab results with their intervals, anaesthesia with its procedure — and says how many entries it has', async () => {
     const fish = await createFish(world.owner.client, world.pond.id, { name: 'Ledger' })
-    const samples = sampleEntries(world.fish.id)
+    const samples = sampleEntries(world.fish.id, world.vet.user.id)
     await addEntry(world.keeper.client, fish.id, samples.measurement)
     await addEntry(world.vet.client, fish.id, samples.exam)
     await addEntry(world.vet.client, fish.id, samples.problemActive)
@@ -45,7 +45,7 @@ describe('the health record', () => {
     await addEntry(world.keeper.client, fish.id, samples.treatmentGiven)
     // A keeper's suspected problem is not clinical: the keeper is not listed among the vets who treated the fish.
     await addEntry(world.keeper.client, fish.id, samples.problemSuspected)
-    await addEntry(world.keeper.client, world.fish.id, { ...samples.companion, data: { relatedFishId: fish.id, relation: 'guides' } })
+    await addEntry(world.keeper.client, world.fish.id, { ...samples.companion, data: { ...samples.companion.data, relatedFishId: fish.id } })
 
     const { summary, entries } = await readRecord(fish.id)
     expect(summary.entryCount).toBe(10)

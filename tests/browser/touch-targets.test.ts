@@ -22,7 +22,7 @@ async function heights(page: Page, selector: string) {
 describe('on a 390 px phone', () => {
   it('the floating "+ Add" button leaves the end of the profile uncovered, and small links are 44 px tall targets', async () => {
     const world = await pondWithRoles()
-    for (const entry of Object.values(sampleEntries(world.fish.id)).slice(0, 4)) await addEntry(world.vet.client, world.fish.id, entry)
+    for (const entry of Object.values(sampleEntries(world.fish.id, world.vet.user.id)).slice(0, 4)) await addEntry(world.vet.client, world.fish.id, entry)
     const page = await browser.newPage()
     await signIn(page, world.keeper.email, world.keeper.password)
     await page.goto(`/fish/${world.fish.id}`, { waitUntil: 'networkidle' })

@@ -63,9 +63,9 @@ export interface RecordAuthorRow extends Record<string, unknown> {
  */
 export function recordClinicalAuthorsSql(fishId: string, kinds: readonly string[]) {
   return sql<RecordAuthorRow>`
-    select u.id as author_id, u.name, e.kind::text as kind, e.data->>'status' as status, e.data->>'givenOnInstructionOf' as instructed_by,
+    select u.id as author_id, u.name, e.kind::text as kind, e.data->>'status' as status, e.data->>'instructedById' as instructed_by,
       count(*)::int as entries, min(e.occurred_at) as first_at, max(e.occurred_at) as last_at
     from timeline_entries e join users u on u.id = e.author_id
     where e.fish_id = ${fishId} and not e.entered_in_error and e.kind = any(${sql.param(kinds)}::timeline_kind[])
-    group by u.id, u.name, e.kind, e.data->>'status', e.data->>'givenOnInstructionOf'`
+    group by u.id, u.name, e.kind, e.data->>'status', e.data->>'instructedById'`
 }

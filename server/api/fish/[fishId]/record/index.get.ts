@@ -30,7 +30,7 @@ export default defineEventHandler(async (event): Promise<HealthRecordSummary> =>
 function clinicians(rows: RecordAuthorRow[]): RecordVet[] {
   const byAuthor = new Map<string, RecordVet>()
   for (const row of rows) {
-    if (!isClinicalEntry(row.kind as EntryKind, { status: row.status ?? undefined, givenOnInstructionOf: row.instructed_by ?? undefined })) continue
+    if (!isClinicalEntry(row.kind as EntryKind, { status: row.status ?? undefined, instructedById: row.instructed_by ?? undefined })) continue
     const [first, last] = [new Date(row.first_at).toISOString(), new Date(row.last_at).toISOString()]
     const known = byAuthor.get(row.author_id)
     if (!known) byAuthor.set(row.author_id, { name: row.name, entries: row.entries, firstAt: first, lastAt: last })
