@@ -26,7 +26,7 @@ describe('one date style, the reader’s own', () => {
     { locale: 'en-GB', timezoneId: 'Europe/London', day: '18 Apr 2023', weighed: /3 Mar 2026/, clock: /\d{2}:\d{2}(?!\s?[AP]M)/ },
   ])('$locale: the same text on the server render and after hydration', async ({ locale, timezoneId, day, weighed, clock }) => {
     const world = await pondWithRoles()
-    await addEntry(world.vet.client, world.fish.id, { kind: 'procedure', occurredAt: '2023-04-18', data: { name: 'enucleation', bodySite: 'eye', side: 'left', surgeon: 'Dr Test Vet' } })
+    await addEntry(world.vet.client, world.fish.id, { kind: 'procedure', occurredAt: '2023-04-18', data: { code: 'enucleation', name: 'enucleation', bodySite: 'eye', side: 'left', performedBy: 'Dr Test Vet' } })
     await addEntry(world.keeper.client, world.fish.id, { kind: 'measurement', occurredAt: '2026-03-03T15:30:00Z', data: { weightG: 1200, lengthCm: 40, lengthType: 'total' } })
     const browser = await openBrowser(1280, 900, { locale, timezoneId })
     contexts.push(browser)
