@@ -38,6 +38,9 @@ export default defineNuxtConfig({
     signInWindowSeconds: 900,
     sessionIdleSeconds: 60 * 60 * 24 * 7,
     sessionAbsoluteSeconds: 60 * 60 * 24 * 30,
+    // Tests only: a secret that lets a request set the clock of the due lists and run the digest job.
+    // Empty (the default) switches the test clock off entirely. See server/utils/clock.ts.
+    testClock: '',
     session: {
       name: 'fintrail-session',
       maxAge: 60 * 60 * 24 * 30,

@@ -3,7 +3,7 @@
 // spreadsheets, and every photo original under photos/. Ids inside an archive are references between its
 // records; an import gives every record a new id.
 import { z } from 'zod'
-import { TIMELINE_KINDS } from './timeline-schemas'
+import { STORED_TIMELINE_KINDS } from './timeline-schemas'
 
 export const ARCHIVE_FORMAT = 'fintrail-pond-archive'
 export const ARCHIVE_SCHEMA_VERSION = 1
@@ -62,7 +62,7 @@ const revisionRecord = z.strictObject({
 const doseRecord = z.strictObject({ doseNumber: z.number().int().min(1).max(1000), givenAt: isoTime, givenBy: id, note: text(500), createdAt: isoTime })
 
 export const timelineRecord = z.strictObject({
-  id, fishId: id, kind: z.enum(TIMELINE_KINDS), occurredAt: isoTime, author: id,
+  id, fishId: id, kind: z.enum(STORED_TIMELINE_KINDS), occurredAt: isoTime, author: id,
   relatedFishId: id.nullable(), linkedEntryId: id.nullable(), photoId: id.nullable(),
   data: z.record(z.string(), z.unknown()), revision: z.number().int().min(1),
   enteredInError: z.boolean(), errorReason: text(2000).nullable(), errorBy: id.nullable(), errorAt: isoTime.nullable(),
