@@ -12,10 +12,18 @@ export function useForm<S extends z.ZodType>(schema: S) {
   const errors = ref<FieldErrors>({})
   const message = ref('')
   const pending = ref(false)
+  const numberFields = provideNumberFields()
 
   async function submit<R>(values: unknown, send: (data: z.output<S>) => Promise<R>): Promise<R | undefined> {
     errors.value = {}
     message.value = ''
+    // A typed number the parser refused is named with its own message, not the schema's.
+    const unreadable = numberFields.check()
+    if (Object.keys(unreadable).length) {
+      errors.value = unreadable
+      message.value = 'Some fields need attention.'
+      return undefined
+    }
     const parsed = schema.safeParse(values)
     if (!parsed.success) {
       errors.value = fieldErrorsFrom(parsed.error)

@@ -1,6 +1,6 @@
 import { createHash, randomUUID } from 'node:crypto'
 import type { H3Event } from 'h3'
-import type { PondRole } from '#shared/types'
+import type { CurrentUser, PondRole } from '#shared/types'
 import { eq, inArray, sql } from 'drizzle-orm'
 import { cellText, importMappingSchema, indexFish, readMeasurementRow, type ImportMapping, type ImportReport, type ReadMeasurement } from '#shared/utils/measurement-import'
 import { fieldErrorsFrom } from '#shared/utils/field-errors'
@@ -9,8 +9,11 @@ import type { Spreadsheet } from './spreadsheets'
 
 type Reader = Pick<Tx, 'select' | 'execute'>
 
-/** The mapping sent beside the file, as JSON in the "mapping" form field; its columns must exist in the sheet. */
-export function parseMapping(text: string | undefined, columns?: string[]): ImportMapping {
+/**
+ * The mapping sent beside the file, as JSON in the "mapping" form field; its columns must exist in the sheet.
+ * Without a decimal separator in the mapping, numbers are read with the importer's own decimal mark.
+ */
+export function parseMapping(text: string | undefined, columns?: string[], importer?: Pick<CurrentUser, 'decimalMark'>): ImportMapping {
   let raw: unknown
   try {
     raw = JSON.parse(text ?? '')
@@ -25,7 +28,7 @@ export function parseMapping(text: string | undefined, columns?: string[]): Impo
     const missing = Object.fromEntries(fields.filter(f => result.data[f] && !columns.includes(result.data[f]!)).map(f => [f, [`The sheet has no column "${result.data[f]}"`]]))
     if (Object.keys(missing).length) throw createError({ statusCode: 400, statusMessage: 'Invalid input', message: 'The mapping names columns the sheet does not have', data: { fieldErrors: missing } })
   }
-  return result.data
+  return { ...result.data, decimalSeparator: result.data.decimalSeparator ?? (importer?.decimalMark === 'comma' ? ',' : '.') }
 }
 
 /** The same row read the same way always gives the same key, whichever file or import it comes from. */

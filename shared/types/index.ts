@@ -1,3 +1,5 @@
+import type { DecimalMark } from '../utils/decimal'
+
 export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
 export type PondRole = typeof POND_ROLES[number]
 
@@ -16,6 +18,8 @@ export interface CurrentUser {
   name: string
   email: string
   units: UnitSystem
+  /** How this person writes decimals; every number they type is read with it. */
+  decimalMark: DecimalMark
 }
 
 export interface PondSummary {

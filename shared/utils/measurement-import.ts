@@ -4,6 +4,7 @@
 import { z } from 'zod'
 import { LENGTH_TYPES, measurementData, type LengthType } from './timeline-schemas'
 import { convert } from './units'
+import { readDecimal, type DecimalMark } from './decimal'
 
 export const IMPORT_MAX_BYTES = 10 * 1024 * 1024
 export const IMPORT_MAX_ROWS = 100_000
@@ -29,7 +30,8 @@ export const importMappingSchema = z.strictObject({
   lengthUnit: z.enum(LENGTH_UNITS, 'Choose cm, mm, m or in').optional(),
   lengthUnitColumn: column('Choose the length unit column').optional(),
   lengthType: z.enum(LENGTH_TYPES, 'Choose total, fork or standard length').default('total'),
-  decimalSeparator: z.enum(['.', ','], 'Choose . or ,').default('.'),
+  // Left out, the importer's own decimal mark (their account setting) is used.
+  decimalSeparator: z.enum(['.', ','], 'Choose . or ,').optional(),
   sheet: z.string().trim().max(200).optional(),
 }).superRefine((m, ctx) => {
   if (!m.weightColumn && !m.lengthColumn) ctx.addIssue({ code: 'custom', path: ['weightColumn'], message: 'Choose a weight column, a length column or both' })
@@ -139,11 +141,11 @@ function unitOf(word: string, allowed: readonly string[]): string | null {
   return unit && allowed.includes(unit) ? unit : null
 }
 
-function readNumber(text: string, decimal: '.' | ','): number | null {
-  const other = decimal === '.' ? ',' : '.'
-  if (text.includes(other)) return null
-  const normal = decimal === ',' ? text.replace(',', '.') : text
-  return /^[+-]?(\d+(\.\d*)?|\.\d+)$/.test(normal) ? Number(normal) : null
+export const markOfSeparator = (decimal: '.' | ','): DecimalMark => (decimal === ',' ? 'comma' : 'point')
+
+/** Cell text through the one shared parser; the refusal says how to write the number. */
+function readNumber(text: string, decimal: '.' | ','): { ok: true, value: number } | { ok: false, message: string } {
+  return readDecimal(text, markOfSeparator(decimal))
 }
 
 /**
@@ -152,8 +154,9 @@ function readNumber(text: string, decimal: '.' | ','): number | null {
  * that contradicts the unit column is refused rather than one of them believed.
  */
 export function readAmount(cell: Cell, options: { base: 'g' | 'cm', allowed: readonly string[], fixedUnit?: string, unitCell?: Cell, decimal: '.' | ',' }): { ok: true, value: number | undefined, entered?: string } | RowRefusal {
-  if (typeof cell === 'number') cell = String(cell).replace('.', options.decimal)
-  const text = cellText(cell)
+  // A number cell of a workbook is already a number: nothing to read, nothing to misread.
+  const numeric = typeof cell === 'number' && Number.isFinite(cell) ? cell : undefined
+  const text = numeric !== undefined ? String(numeric) : cellText(cell)
   if (!text) return { ok: true, value: undefined }
   const what = options.base === 'g' ? 'weight' : 'length'
   const unitColumnText = cellText(options.unitCell)
@@ -165,14 +168,15 @@ export function readAmount(cell: Cell, options: { base: 'g' | 'cm', allowed: rea
   const compound = options.base === 'g' ? /^(?<lb>[\d.,]+)\s*(lb|lbs|pounds?)\.?\s+(?<oz>[\d.,]+)\s*(oz|ounces?)\.?$/i.exec(text)?.groups : undefined
   if (compound) {
     const [lb, oz] = [readNumber(compound.lb!, options.decimal), readNumber(compound.oz!, options.decimal)]
-    if (lb === null || oz === null) return fail('not_a_number', `"${text}" is not a ${what} we can read`)
+    if (!lb.ok || !oz.ok) return fail('not_a_number', `"${text}" is not a ${what} we can read. ${(!lb.ok ? lb : oz as { message: string }).message}`)
     if (columnUnit) return fail('unknown_unit', `"${text}" gives its own units but the unit column says ${columnUnit}`)
-    return { ok: true, value: convert(lb, 'lb', 'g') + convert(oz, 'oz', 'g'), entered: text.slice(0, 40) }
+    return { ok: true, value: convert(lb.value, 'lb', 'g') + convert(oz.value, 'oz', 'g'), entered: text.slice(0, 40) }
   }
-  const parts = /^(?<number>[+-]?[\d.,]+)\s*(?<unit>[a-zA-Z"]+\.?)?$/.exec(text)?.groups
+  const parts = numeric !== undefined ? { number: text, unit: undefined } : /^(?<number>[+-]?[\d.,\s\u00a0\u202f]*\d)\s*(?<unit>[a-zA-Z"]+\.?)?$/.exec(text)?.groups
   if (!parts) return fail('not_a_number', `"${text}" is not a number`)
-  const value = readNumber(parts.number!, options.decimal)
-  if (value === null) return fail('not_a_number', `"${parts.number}" is not a number written with "${options.decimal}" as the decimal separator`)
+  const reading = numeric !== undefined ? { ok: true as const, value: numeric } : readNumber(parts.number!, options.decimal)
+  if (!reading.ok) return fail('not_a_number', `"${parts.number}" is not a number we can read with "${options.decimal}" as the decimal mark. ${reading.message}`)
+  const value = reading.value
   let unit: string | null | undefined = columnUnit ?? options.fixedUnit
   if (parts.unit) {
     const cellUnit = unitOf(parts.unit, options.allowed)
@@ -195,11 +199,11 @@ export function readMeasurementRow(cells: Record<string, Cell>, mapping: ImportM
   const date = readDate(cells[mapping.dateColumn], mapping.dateFormat, today)
   if (!date.ok) return fail('bad_date', date.message)
   const weight = mapping.weightColumn
-    ? readAmount(cells[mapping.weightColumn], { base: 'g', allowed: WEIGHT_UNITS, fixedUnit: mapping.weightUnit, unitCell: mapping.weightUnitColumn ? cells[mapping.weightUnitColumn] : undefined, decimal: mapping.decimalSeparator })
+    ? readAmount(cells[mapping.weightColumn], { base: 'g', allowed: WEIGHT_UNITS, fixedUnit: mapping.weightUnit, unitCell: mapping.weightUnitColumn ? cells[mapping.weightUnitColumn] : undefined, decimal: mapping.decimalSeparator ?? '.' })
     : { ok: true as const, value: undefined, entered: undefined }
   if (!weight.ok) return weight
   const length = mapping.lengthColumn
-    ? readAmount(cells[mapping.lengthColumn], { base: 'cm', allowed: LENGTH_UNITS, fixedUnit: mapping.lengthUnit, unitCell: mapping.lengthUnitColumn ? cells[mapping.lengthUnitColumn] : undefined, decimal: mapping.decimalSeparator })
+    ? readAmount(cells[mapping.lengthColumn], { base: 'cm', allowed: LENGTH_UNITS, fixedUnit: mapping.lengthUnit, unitCell: mapping.lengthUnitColumn ? cells[mapping.lengthUnitColumn] : undefined, decimal: mapping.decimalSeparator ?? '.' })
     : { ok: true as const, value: undefined, entered: undefined }
   if (!length.ok) return length
   if (weight.value === undefined && length.value === undefined) return fail('no_measurement', 'Neither a weight nor a length in this row')

@@ -13,6 +13,8 @@ describe('reading an amount from a spreadsheet cell', () => {
     ['2 lb 12 oz', {}, 2 * 453.59237 + 12 * 28.349523125, '2 lb 12 oz'], // NIST SP 811: 1247.3790175 g
     ['3 lbs', {}, 1360.77711, '3 lb'], // "lbs" is the same unit
     ['1,5', { decimal: ',' as const, fixedUnit: 'kg' }, 1500, '1,5 kg'], // decimal comma chosen
+    ['1,250', { fixedUnit: 'g' }, 1250, undefined], // thousands grouped in threes with a point reader (parseDecimal table)
+    ['1.250,5', { decimal: ',' as const, fixedUnit: 'g' }, 1250.5, undefined], // the same with a comma reader
     [1250.5, { fixedUnit: 'g' }, 1250.5, undefined], // a number cell needs no parsing
   ])('%s → %d g', (cell, extra, grams, entered) => {
     const result = weight(cell, extra)
@@ -24,7 +26,7 @@ describe('reading an amount from a spreadsheet cell', () => {
 
   it.each([
     ['heavy', { fixedUnit: 'g' }, 'not_a_number'],
-    ['1,250', { fixedUnit: 'g' }, 'not_a_number'], // a comma with "." chosen: a thousands separator or a decimal comma? Not guessed.
+    ['1,25', { fixedUnit: 'g' }, 'not_a_number'], // a comma with "." chosen cannot be a thousands group: refused, not guessed (parseDecimal table)
     ['13 stone', {}, 'unknown_unit'],
     ['1250', {}, 'missing_unit'],
     ['2 kg', { unitCell: 'lb' }, 'unknown_unit'], // the cell and the unit column disagree

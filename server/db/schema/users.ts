@@ -3,6 +3,8 @@ import { index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, va
 import { timestamps } from './columns'
 
 export const unitSystem = pgEnum('unit_system', ['metric', 'us'])
+// How the person writes decimals: read by shared/utils/decimal.ts for every number they type.
+export const decimalMark = pgEnum('decimal_mark', ['point', 'comma'])
 
 export const users = pgTable('users', {
   id: uuid('id').primaryKey().defaultRandom(),
@@ -10,6 +12,7 @@ export const users = pgTable('users', {
   name: varchar('name', { length: 120 }).notNull(),
   passwordHash: text('password_hash').notNull(),
   units: unitSystem('units').notNull().default('metric'),
+  decimalMark: decimalMark('decimal_mark').notNull().default('point'),
   ...timestamps,
 }, t => [uniqueIndex('users_email_unique').on(sql`lower(${t.email})`)])
 

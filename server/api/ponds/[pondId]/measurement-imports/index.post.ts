@@ -8,7 +8,7 @@ export default defineEventHandler(async (event): Promise<ImportReport> => {
   const { user } = await requirePondRole(event, pondId, IMPORT_ROLES)
   const { file, fields } = await readImportForm(event)
   const sheet = await readSpreadsheet(file, parseMapping(fields.mapping).sheet)
-  const mapping = parseMapping(fields.mapping, sheet.columns)
+  const mapping = parseMapping(fields.mapping, sheet.columns, user)
   const report = await runImport(event, pondId, user.id, sheet, mapping, createHash('sha256').update(file.data).digest('hex'))
   setResponseStatus(event, 201)
   return report
