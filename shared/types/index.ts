@@ -1,4 +1,5 @@
 import type { DecimalMark } from '../utils/decimal'
+import type { PondVolumeMeasurement } from '../utils/pond-volume-schemas'
 
 export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
 export type PondRole = typeof POND_ROLES[number]
@@ -34,6 +35,8 @@ export interface PondDetail {
   id: string
   name: string
   volumeLitres: number | null
+  /** How the volume was measured (shape, unit, readings); null when it was typed as a number. */
+  volumeMeasurement: PondVolumeMeasurement | null
   notes: string
   role: PondRole
   /** Kept on after a handover to look, not to change: the client hides what the server would refuse. */

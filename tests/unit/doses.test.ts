@@ -10,7 +10,7 @@ import {
   saltGramsPerLitre,
 } from '../../shared/utils/doses'
 
-// Source for every formula: REFERENCES.md "Treatment arithmetic". The numbers below are arithmetic
+// Source for every formula: docs/references.md "Treatment arithmetic". The numbers below are arithmetic
 // checks, not dose recommendations.
 
 describe('bath, salt and injection arithmetic', () => {
@@ -24,8 +24,8 @@ describe('bath, salt and injection arithmetic', () => {
   })
 
   it.each([
-    // Source: REFERENCES.md — 0.3 % = 3 g/L.
-    { label: 'REFERENCES.md: 0.3 %', percent: 0.3, expected: 3 },
+    // Source: docs/references.md — 0.3 % = 3 g/L.
+    { label: 'docs/references.md: 0.3 %', percent: 0.3, expected: 3 },
     // Derived: percent × 10 → 0.1 % = 1 g/L, 3 % = 30 g/L.
     { label: 'derived: 0.1 %', percent: 0.1, expected: 1 },
     { label: 'derived: 3 %', percent: 3, expected: 30 },
@@ -110,7 +110,8 @@ describe('dilution conventions', () => {
 
 describe('DOSE_CAUTIONS', () => {
   it.each([
-    // Source: PRODUCT.md and REFERENCES.md — the cautions every dose helper shows.
+    // Source: docs/references.md "Treatment arithmetic" (MS-222 buffering and handling, 21-day withdrawal);
+    // the licensed-veterinarian, formulary and local-code lines are common practice for dose helpers.
     { label: 'licensed veterinarian', pattern: /licensed veterinarian/i },
     { label: 'current formulary', pattern: /current formulary/i },
     { label: 'local codes', pattern: /local .*codes/i },

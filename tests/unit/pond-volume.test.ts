@@ -7,7 +7,7 @@ import {
   rectanglePondLitres,
 } from '../../shared/utils/pond-volume'
 
-// Source for the formulas: REFERENCES.md, common practice from extension services (e.g. Colorado
+// Source for the formulas: docs/references.md, common practice from extension services (e.g. Colorado
 // State University Extension fact sheet 6.400). Values are computed by hand from them; 1 m³ = 1000 L.
 
 describe('pond volume in litres', () => {
