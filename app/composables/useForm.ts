@@ -17,11 +17,12 @@ export function useForm<S extends z.ZodType>(schema: S) {
   async function submit<R>(values: unknown, send: (data: z.output<S>) => Promise<R>): Promise<R | undefined> {
     errors.value = {}
     message.value = ''
-    // A typed number the parser refused is named with its own message, not the schema's.
+    // A typed number the parser refused: each number field shows the parser's own message (live, so it
+    // goes away once the text reads), and nothing is sent.
     const unreadable = numberFields.check()
     if (Object.keys(unreadable).length) {
-      errors.value = unreadable
       message.value = 'Some fields need attention.'
+      if (import.meta.client) document.getElementById(Object.keys(unreadable)[0]!)?.focus()
       return undefined
     }
     const parsed = schema.safeParse(values)

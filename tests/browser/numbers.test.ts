@@ -48,7 +48,7 @@ describe('typed numbers in Chromium', () => {
     expect(await form.getByTestId('error-data.weightG').count()).toBe(0)
     await form.getByLabel('Length (cm)').fill('42')
     // 100 · 1250 / 42³ = 125000 / 74088 = 1.687 (Fulton; Nash et al. 2006).
-    await expect.poll(() => form.getByTestId('measurement-preview').textContent()).toContain('Condition factor K 1.69')
+    await expect.poll(() => form.getByTestId('measurement-preview').textContent()).toContain('Condition factor K (TL) 1.69')
     await screenshots(page, 'numbers-weight-understood')
     await form.getByTestId('entry-submit').click()
     await form.waitFor({ state: 'detached' })

@@ -105,7 +105,7 @@ describe('the life record in Chromium', () => {
     await form.getByTestId('entry-submit').click()
     await form.waitFor({ state: 'detached' })
     await expect.poll(() => page.getByTestId('fact-weight').textContent()).toContain('1.90 kg')
-    expect(await page.getByTestId('fact-condition').textContent()).toContain('K 1.72')
+    expect(await page.getByTestId('fact-condition').textContent()).toContain('K (TL) 1.72')
     const after = await page.locator('[data-testid="growth-chart"] canvas').getAttribute('aria-label')
     expect(Number(after!.match(/(\d+) measurements/)![1])).toBe(Number(before!.match(/(\d+) measurements/)![1]) + 1)
     await screenshots(page, 'timeline-keeper-weight')

@@ -8,7 +8,7 @@ const codes = (list: { code: string }[]) => list.map(w => w.code)
 
 describe('condition factor outside the species range (common practice ranges)', () => {
   it.each([
-    // 1000 g at 40 cm: K = 100 · 1000 / 64000 = 1.5625 (REFERENCES.md worked example) → usual
+    // 1000 g at 40 cm: K = 100 · 1000 / 64000 = 1.5625 (worked example in docs/references.md) → usual
     [1000, 40, []],
     // 1250 g typed, read as 1.25 g by a comma slip, at 40 cm: K = 0.00195 → far below 1.0
     [1.25, 40, ['condition_factor']],
