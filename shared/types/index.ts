@@ -130,3 +130,21 @@ export interface FishPhotos {
   canUpload: boolean
   canSetProfile: boolean
 }
+
+/** Where the e-mail announcing an offer stands, shown to its sender with a resend button. */
+export interface OfferMailState {
+  status: 'queued' | 'sent' | 'failed'
+  attempts: number
+  /** A plain reason when the last attempt failed; the raw SMTP error stays in the server log. */
+  lastError: string | null
+  updatedAt: string
+}
+
+export interface PendingInvitation {
+  id: string
+  email: string
+  role: PondRole
+  expiresAt: string
+  createdAt: string
+  mail: OfferMailState | null
+}

@@ -124,7 +124,7 @@ describe('the life record in Chromium', () => {
 
   it('keeps what a keeper typed when the network fails, and saves it once when it is back', async () => {
     const api = await apiAs(US_KEEPER)
-    const { fishId } = await demoFish(api, 'Courtyard pond', 'Kenzo')
+    const { fishId } = await demoFish(api, 'Garden pond', 'Kenzo')
     const count = async () => {
       const { rows } = await testDb().query(`select count(*)::int as n from timeline_entries where fish_id = $1 and kind = 'measurement'`, [fishId])
       return rows[0].n as number
