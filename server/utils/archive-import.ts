@@ -6,6 +6,7 @@ import { pipeline } from 'node:stream/promises'
 import { eq, sql } from 'drizzle-orm'
 import type { ZipFile } from 'yauzl'
 import type { ValidatedArchive } from './archive-validate'
+import { upgradeLegacyEntries } from '../db/upgrade-entries'
 
 const BATCH = 500
 
@@ -116,6 +117,8 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
           }
         }
       })
+      // An archive made before procedure codes (and the other later forms) reads like a live write now.
+      await upgradeLegacyEntries(tx, sql`e.pond_id = ${newPondId}`)
       await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'off', true)`)
       await tx.execute(sql`select fintrail_refresh_measurement_summary(id) from fish where pond_id = ${newPondId}`)
       return newPondId
