@@ -31,10 +31,12 @@ const enteredAs = z.strictObject({
 export const LENGTH_TYPES = ['total', 'fork', 'standard'] as const
 export type LengthType = typeof LENGTH_TYPES[number]
 
+// The largest koi on record weigh about 40 kg and measure about 1.2 m.
+export const MEASUREMENT_LIMITS = { weightG: 60_000, lengthCm: 150 } as const
+
 export const measurementData = z.strictObject({
-  // The largest koi on record weigh about 40 kg and measure about 1.2 m.
-  weightG: amount('weight', 60_000, 'g').optional(),
-  lengthCm: amount('length', 150, 'cm').optional(),
+  weightG: amount('weight', MEASUREMENT_LIMITS.weightG, 'g').optional(),
+  lengthCm: amount('length', MEASUREMENT_LIMITS.lengthCm, 'cm').optional(),
   lengthType: z.enum(LENGTH_TYPES, 'Choose total, fork or standard length').default('total'),
   entered: enteredAs,
   note: limitedText(1000).optional(),

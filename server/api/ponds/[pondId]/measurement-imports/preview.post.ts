@@ -8,6 +8,6 @@ export default defineEventHandler(async (event): Promise<ImportReport> => {
   const { file, fields } = await readImportForm(event)
   const sheet = await readSpreadsheet(file, parseMapping(fields.mapping).sheet)
   const mapping = parseMapping(fields.mapping, sheet.columns, user)
-  const { report } = await planImport(useDb(), pondId, sheet, mapping)
+  const { report } = await planImport(useDb(), pondId, sheet, mapping, importOptions(user, fields))
   return { ...report, importId: null, dryRun: true, importedCount: 0 }
 })
