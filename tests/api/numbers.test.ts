@@ -150,4 +150,27 @@ describe('the spreadsheet import reads numbers with the importer\'s decimal mark
       await world.keeper.client.patch('/api/me', { decimalMark: 'point' })
     }
   })
+
+  it('flags implausible rows by the same rule as the form and imports them only when confirmed', async () => {
+    const fish = await createFish(world.owner.client, world.pond.id, { name: 'Flagged', hatchYear: 2016 })
+    const url = `/api/ponds/${world.pond.id}/measurement-imports`
+    // Row 3: 2.6 kg ten days after 1 kg (+160 %, over 30 % in 30 days; common practice). Header unit "(g)" needs no mapping unit.
+    const sheet = { name: 'f.csv', data: 'Fish,Date,Weight (g)\nFlagged,2024-05-01,1000\nFlagged,2024-05-11,2600\n' }
+    const plain = { fishColumn: 'Fish', fishMatch: 'name', dateColumn: 'Date', dateFormat: 'YYYY-MM-DD', weightColumn: 'Weight (g)' }
+    const preview = await uploadSheet(world.keeper.client, `${url}/preview`, sheet, { mapping: plain })
+    expect(preview.status, JSON.stringify(preview.body)).toBe(200)
+    expect(preview.body).toMatchObject({ readyCount: 1, warningsAcknowledged: false })
+    expect(preview.body.flagged).toHaveLength(1)
+    expect(preview.body.flagged[0]).toMatchObject({ row: 3, fishName: 'Flagged', date: '2024-05-11' })
+    expect(preview.body.flagged[0].warnings[0]).toMatchObject({ code: 'weight_jump', value: 2600, earlierValue: 1000 })
+
+    const held = await uploadSheet(world.keeper.client, url, sheet, { mapping: plain })
+    expect(held.body.importedCount).toBe(1)
+    const confirmed = await uploadSheet(world.keeper.client, url, sheet, { mapping: plain, acknowledgeWarnings: 'true' })
+    expect(confirmed.status, JSON.stringify(confirmed.body)).toBe(201)
+    expect(confirmed.body.importedCount).toBe(1)
+    const { rows } = await testDb().query(`select data from timeline_entries where fish_id = $1 and kind = 'measurement' order by occurred_at`, [fish.id])
+    expect(rows.map(r => r.data.weightG)).toEqual([1000, 2600])
+    expect(rows[1].data.warnings.map((w: { code: string }) => w.code)).toEqual(['weight_jump'])
+  })
 })
