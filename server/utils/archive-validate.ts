@@ -128,6 +128,7 @@ export async function validateArchive(zip: ZipFile): Promise<ValidatedArchive> {
     known(entry.author, `timeline entry ${entry.id}`)
     known(entry.errorBy, `timeline entry ${entry.id}`)
     for (const revision of entry.revisions) known(revision.author, `a revision of timeline entry ${entry.id}`)
+    for (const dose of entry.doses ?? []) known(dose.givenBy, `a dose of timeline entry ${entry.id}`)
   }
   const counted = { people: people.size, fish: fish.size, photos: photos.size }
   for (const [key, value] of Object.entries(counted)) {

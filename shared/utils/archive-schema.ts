@@ -3,7 +3,7 @@
 // spreadsheets, and every photo original under photos/. Ids inside an archive are references between its
 // records; an import gives every record a new id.
 import { z } from 'zod'
-import { TIMELINE_KINDS } from './timeline-schemas'
+import { STORED_TIMELINE_KINDS } from './timeline-schemas'
 
 export const ARCHIVE_FORMAT = 'fintrail-pond-archive'
 export const ARCHIVE_SCHEMA_VERSION = 1
@@ -58,13 +58,18 @@ const revisionRecord = z.strictObject({
   revision: z.number().int().min(1), occurredAt: isoTime, data: z.record(z.string(), z.unknown()), author: id, reason: text(2000).nullable(), createdAt: isoTime,
 })
 
+// A dose of a treatment course ticked off as given. Archives made before doses were recorded have none.
+const doseRecord = z.strictObject({ doseNumber: z.number().int().min(1).max(1000), givenAt: isoTime, givenBy: id, note: text(500), createdAt: isoTime })
+
 export const timelineRecord = z.strictObject({
-  id, fishId: id, kind: z.enum(TIMELINE_KINDS), occurredAt: isoTime, author: id,
+  id, fishId: id, kind: z.enum(STORED_TIMELINE_KINDS), occurredAt: isoTime, author: id,
   relatedFishId: id.nullable(), linkedEntryId: id.nullable(), photoId: id.nullable(),
   data: z.record(z.string(), z.unknown()), revision: z.number().int().min(1),
   enteredInError: z.boolean(), errorReason: text(2000).nullable(), errorBy: id.nullable(), errorAt: isoTime.nullable(),
   createdAt: isoTime, revisions: z.array(revisionRecord).min(1).max(1000),
+  doses: z.array(doseRecord).max(1000).optional(),
 }).refine(r => r.revisions.length === r.revision && r.revisions.every((v, i) => v.revision === i + 1), 'Revisions must run 1, 2, … up to the current one')
+  .refine(r => !r.doses?.length || (r.kind === 'treatment' && new Set(r.doses.map(d => d.doseNumber)).size === r.doses.length), 'Doses belong to a treatment, each dose once')
 
 export const photoRecord = z.strictObject({
   id, fishId: id, uploader: id, originalName: text(255), view: z.enum(['top', 'left', 'right', 'closeup', 'other']), caption: text(300),

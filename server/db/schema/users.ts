@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm'
-import { index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { timestamps } from './columns'
 
 export const unitSystem = pgEnum('unit_system', ['metric', 'us'])
@@ -13,6 +13,8 @@ export const users = pgTable('users', {
   passwordHash: text('password_hash').notNull(),
   units: unitSystem('units').notNull().default('metric'),
   decimalMark: decimalMark('decimal_mark').notNull().default('point'),
+  // The daily e-mail of what is due in the person's ponds; they can turn it off on the account page.
+  dueDigest: boolean('due_digest').notNull().default(true),
   ...timestamps,
 }, t => [uniqueIndex('users_email_unique').on(sql`lower(${t.email})`)])
 
