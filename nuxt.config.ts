@@ -1,4 +1,6 @@
 // Fintrail: Nuxt 4 app with a Nitro server, PostgreSQL through Drizzle, sessions from nuxt-auth-utils.
+import { build } from 'esbuild'
+
 export default defineNuxtConfig({
   modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint'],
   devtools: { enabled: false },
@@ -49,6 +51,16 @@ export default defineNuxtConfig({
   },
   compatibilityDate: '2026-01-01',
   nitro: {
+    hooks: {
+      // "Which fish is this?" runs OpenCV in a worker thread, which needs a file of its own beside the
+      // server entry: bundled here (OpenCV included) as CommonJS, because OpenCV's loader uses __dirname.
+      async compiled(nitro) {
+        await build({
+          entryPoints: ['server/fish-id/worker.ts'], bundle: true, platform: 'node', target: 'node20', format: 'cjs',
+          external: ['sharp'], outfile: `${nitro.options.output.serverDir}/which-fish-worker.cjs`, logLevel: 'warning',
+        })
+      },
+    },
     experimental: { tasks: true },
     // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
     scheduledTasks: { '0 * * * *': ['photos:purge'] },

@@ -35,7 +35,8 @@ async function main() {
   await db.transaction(async (tx) => {
     const ids = {} as Record<PersonKey, string>
     for (const [key, person] of Object.entries(people) as [PersonKey, typeof people[PersonKey]][]) {
-      const [row] = await tx.insert(schema.users).values({ name: person.name, email: person.email, passwordHash, units: key === 'family' ? 'us' : 'metric' }).returning()
+      // The demo people write decimals with a point (set here, not left to the default, so tests can rely on it).
+      const [row] = await tx.insert(schema.users).values({ name: person.name, email: person.email, passwordHash, units: key === 'family' ? 'us' : 'metric', decimalMark: 'point' }).returning()
       ids[key] = row!.id
     }
     const pond = async (name: string, volumeLitres: number, notes: string, members: [PersonKey, 'owner' | 'keeper' | 'vet'][]) => {
@@ -58,9 +59,10 @@ async function main() {
       }
     }
     for (const photo of photos) {
-      const { id, fishName, profile, ...row } = photo
+      const { id, fishName, profile, features, featuresVersion, ...row } = photo
       const uploaderId = whitlockPondFish.some(f => f.name === fishName) ? ids.otherClient : ids.owner
       await tx.insert(schema.photos).values({ id, fishId: fishIds[fishName]!, uploaderId, state: 'ready', createdAt: row.takenAt, updatedAt: row.takenAt, ...row })
+      if (features) await tx.insert(schema.photoFeatures).values({ photoId: id, version: featuresVersion, features })
       if (profile) await tx.update(schema.fish).set({ profilePhotoId: id }).where(eq(schema.fish.id, fishIds[fishName]!))
     }
     await seedHistories(tx, { people: ids, ponds: { garden, courtyard, whitlock }, fish: fishIds })

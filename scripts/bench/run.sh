@@ -1,17 +1,17 @@
 #!/usr/bin/env bash
 # Benchmarks on loopback against the built server and a scratch database in the test cluster.
-# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | all   (npm run bench = all)
+# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | which-fish | all   (npm run bench = all)
 set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/../lib.sh"
 cd "$ROOT"
 
-NAME="${1:?name a benchmark: fish-list, timeline, photos, archive or all}"
-BENCHMARKS=(fish-list timeline photos archive)
+NAME="${1:?name a benchmark: fish-list, timeline, photos, archive, which-fish or all}"
+BENCHMARKS=(fish-list timeline photos archive which-fish)
 if [ "$NAME" != all ] && [ ! -f "scripts/bench/$NAME.ts" ]; then
   echo "No benchmark named $NAME (scripts/bench/$NAME.ts); choose one of: ${BENCHMARKS[*]} or all" >&2
   exit 2
 fi
-PG_PORT=54339
+PG_PORT="${FINTRAIL_TEST_PG_PORT:-54339}"
 DB="fintrail_bench"
 
 ensure_node_modules
