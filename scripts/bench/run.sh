@@ -1,12 +1,13 @@
 #!/usr/bin/env bash
 # Benchmarks on loopback against the built server and a scratch database in the test cluster.
-# Usage: bash scripts/bench/run.sh fish-list | timeline | photos
+# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | hostile-uploads
+# (FINTRAIL_TEST_PG_PORT moves the database cluster, as for the tests; BENCH_PORT the server.)
 set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/../lib.sh"
 cd "$ROOT"
 
 NAME="${1:?name a benchmark: fish-list, timeline or photos}"
-PG_PORT=54339
+PG_PORT="${FINTRAIL_TEST_PG_PORT:-54339}"
 DB="fintrail_bench"
 
 ensure_node_modules

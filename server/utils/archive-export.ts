@@ -35,7 +35,7 @@ async function* people(pondId: string): AsyncGenerator<ArchiveRecord<'people'>> 
       union select x.user_id from fish_edits x join fish f on f.id = x.fish_id where f.pond_id = $1
       union select p.uploader_id from photos p join fish f on f.id = p.fish_id where f.pond_id = $1
     ) order by u.id`, [pondId])
-  for (const u of rows) yield { ref: u.id, name: u.name, email: u.email }
+  for (const u of rows) yield { ref: u.id, name: u.name, email: u.email, role: null }
 }
 
 async function* fishRecords(pondId: string): AsyncGenerator<ArchiveRecord<'fish'>> {
