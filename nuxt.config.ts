@@ -30,6 +30,11 @@ export default defineNuxtConfig({
     smtpHost: '127.0.0.1',
     smtpPort: 1025,
     mailFrom: 'Fintrail <no-reply@fintrail.local>',
+    // The outbox worker: attempts after the first, and the first retry's delay (doubled each time).
+    mailRetryLimit: 6,
+    mailRetryDelaySeconds: 10,
+    // PostgreSQL schema of the job queue (pg-boss), in the app's database.
+    jobsSchema: 'pgboss',
     signInLimit: 10,
     signInIpLimit: 100,
     signInWindowSeconds: 900,

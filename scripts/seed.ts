@@ -1,5 +1,7 @@
 // Seeds the invented demo scenario once; a second run sees the owner's account and stops.
-import { sql } from 'drizzle-orm'
+import { dirname, join } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { eq, sql } from 'drizzle-orm'
 import { drizzle } from 'drizzle-orm/node-postgres'
 import pg from 'pg'
 import { Hash } from '@adonisjs/hash'
@@ -7,7 +9,8 @@ import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
 import * as schema from '../server/db/schema'
 import { DEMO_PASSWORD, people, type PersonKey } from './seed/people'
 import { courtyardPondFish, gardenPondFish, whitlockPondFish } from './seed/fish'
-import { seedHistories } from './seed/histories'
+import { GROWTH, seedHistories } from './seed/histories'
+import { prepareDemoPhotos } from './seed/photos'
 
 const SCIENTIFIC = { koi: 'Cyprinus carpio', goldfish: 'Carassius auratus' } as const
 
@@ -20,6 +23,13 @@ async function main() {
     await pool.end()
     return
   }
+  const allFish = [...gardenPondFish, ...courtyardPondFish, ...whitlockPondFish]
+  // Photo files first (the slow part, cached between runs), then every row in one transaction.
+  const storageDir = process.env.NUXT_STORAGE_DIR || join(dirname(fileURLToPath(import.meta.url)), '..', 'storage')
+  const photos = await prepareDemoPhotos(allFish.map(f => ({
+    name: f.name, species: f.species, variety: f.variety, firstPhotoOn: GROWTH[f.name]!.firstRecord,
+    latestPhotoOn: f.name === 'Nori' ? '2025-05-10' : '2026-05-09',
+  })), storageDir)
   // The same scrypt hasher and defaults that nuxt-auth-utils uses, so the demo accounts can sign in.
   const passwordHash = await new Hash(new Scrypt({})).make(DEMO_PASSWORD)
   await db.transaction(async (tx) => {
@@ -34,7 +44,7 @@ async function main() {
       return row!.id
     }
     const garden = await pond('Garden pond', 18000, 'Koi pond, 1.5 m deep, bead filter and UV; shaded by the willow in summer.', [['owner', 'owner'], ['family', 'keeper'], ['keeper', 'keeper'], ['vet', 'vet']])
-    const courtyard = await pond('Courtyard pond', 3200, 'Raised pond by the kitchen: goldfish and two young koi growing on.', [['owner', 'owner'], ['family', 'keeper'], ['vet', 'vet']])
+    const courtyard = await pond('Courtyard pond', 3200, 'Raised pond by the kitchen for the goldfish. Young koi are grown on here until about 40 cm, then moved to the Garden pond.', [['owner', 'owner'], ['family', 'keeper'], ['vet', 'vet']])
     const whitlock = await pond('Whitlock koi pond', 24000, 'A client of the vet, not connected to the Marlow household.', [['otherClient', 'owner'], ['vet', 'vet']])
     const fishIds: Record<string, string> = {}
     for (const [pondId, list] of [[garden, gardenPondFish], [courtyard, courtyardPondFish], [whitlock, whitlockPondFish]] as const) {
@@ -46,6 +56,12 @@ async function main() {
         }).returning()
         fishIds[f.name] = row!.id
       }
+    }
+    for (const photo of photos) {
+      const { id, fishName, profile, ...row } = photo
+      const uploaderId = whitlockPondFish.some(f => f.name === fishName) ? ids.otherClient : ids.owner
+      await tx.insert(schema.photos).values({ id, fishId: fishIds[fishName]!, uploaderId, state: 'ready', createdAt: row.takenAt, updatedAt: row.takenAt, ...row })
+      if (profile) await tx.update(schema.fish).set({ profilePhotoId: id }).where(eq(schema.fish.id, fishIds[fishName]!))
     }
     await seedHistories(tx, { people: ids, ponds: { garden, courtyard, whitlock }, fish: fishIds })
   })

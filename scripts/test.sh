@@ -44,17 +44,18 @@ export DATABASE_URL="postgres://fintrail@127.0.0.1:$PG_PORT/$PG_DB"
 say "Applying database migrations to $PG_DB ..."
 run_migrations "$DATABASE_URL"
 
-# The browser tests sign in as the demo people, so the test database gets the demo scenario too.
+# Uploaded files and mail belong to the database they were made with: start empty with it.
+rm -rf "$TEST_STORAGE_DIR" "$TEST_MAIL_DIR"
+mkdir -p "$TEST_STORAGE_DIR" "$TEST_MAIL_DIR"
+
+# The browser tests sign in as the demo people, so the test database gets the demo scenario too
+# (its photos go into the test storage folder).
 say "Loading the demo scenario into $PG_DB ..."
-"$ROOT/node_modules/.bin/tsx" scripts/seed.ts || die "loading the demo data failed (see above)."
+NUXT_STORAGE_DIR="$TEST_STORAGE_DIR" "$ROOT/node_modules/.bin/tsx" scripts/seed.ts || die "loading the demo data failed (see above)."
 
 # A new secret every run: test sessions never match demo ones and never outlive the run.
 NUXT_SESSION_PASSWORD="$(random_secret)"
 ensure_session_secret
-
-# Uploaded files and mail belong to the database they were made with: start empty with it.
-rm -rf "$TEST_STORAGE_DIR" "$TEST_MAIL_DIR"
-mkdir -p "$TEST_STORAGE_DIR" "$TEST_MAIL_DIR"
 
 say "Starting the test mail server (SMTP $SMTP_PORT, inbox $INBOX_URL) ..."
 start_mail_server "$SMTP_PORT" "$INBOX_PORT" "$TEST_MAIL_DIR" "$STORAGE_DIR/test-mail-server.log"

@@ -58,6 +58,15 @@ export const RELATION_LABELS: Record<string, string> = {
 }
 export const PROBLEM_STATUS_LABELS: Record<string, string> = { suspected: 'Suspected', active: 'Active', resolved: 'Resolved' }
 export const LENGTH_TYPE_LABELS: Record<string, string> = { total: 'total length', fork: 'fork length', standard: 'standard length' }
+const LENGTH_TYPE_ABBREVIATIONS: Record<string, string> = { total: 'TL', fork: 'FL', standard: 'SL' }
+
+/** "K (TL)": Fulton's K reads higher from fork or standard length, so the label says which was used. */
+export function conditionFactorLabel(lengthType: string | undefined) {
+  return `K (${LENGTH_TYPE_ABBREVIATIONS[lengthType ?? 'total'] ?? lengthType})`
+}
+
+/** Relative weight is only computed against the common carp standard (Bister et al. 2000, docs/references.md). */
+export const RELATIVE_WEIGHT_NOTE = 'against wild common carp, 100 = standard'
 
 /** "18 Apr 2023" in the reader's own calendar. */
 export function formatEntryDate(iso: string) {

@@ -1,23 +1,39 @@
 #!/usr/bin/env bash
 # Benchmarks on loopback against the built server and a scratch database in the test cluster.
-# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | hostile-uploads
+# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | hostile-uploads | all   (npm run bench = all)
 # (FINTRAIL_TEST_PG_PORT moves the database cluster, as for the tests; BENCH_PORT the server.)
 set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/../lib.sh"
 cd "$ROOT"
 
-NAME="${1:?name a benchmark: fish-list, timeline or photos}"
+NAME="${1:?name a benchmark: fish-list, timeline, photos, archive, hostile-uploads or all}"
+BENCHMARKS=(fish-list timeline photos archive hostile-uploads)
+if [ "$NAME" != all ] && [ ! -f "scripts/bench/$NAME.ts" ]; then
+  echo "No benchmark named $NAME (scripts/bench/$NAME.ts); choose one of: ${BENCHMARKS[*]} or all" >&2
+  exit 2
+fi
 PG_PORT="${FINTRAIL_TEST_PG_PORT:-54339}"
 DB="fintrail_bench"
 
 ensure_node_modules
 ensure_apt_packages postgresql
 pg_cluster_start test "$PG_PORT" fast
-pg_fresh_database "$PG_PORT" "$DB"
 export DATABASE_URL="postgres://fintrail@127.0.0.1:$PG_PORT/$DB"
-run_migrations "$DATABASE_URL"
 [ -f .output/server/index.mjs ] || npx nuxt build
 export NUXT_SESSION_PASSWORD="$(random_secret)"
 export BENCH_STORAGE_DIR="$STORAGE_DIR/bench"
-rm -rf "$BENCH_STORAGE_DIR" && mkdir -p "$BENCH_STORAGE_DIR"
-"$ROOT/node_modules/.bin/tsx" "scripts/bench/$NAME.ts"
+
+# Each benchmark gets a fresh database and storage folder, so one's data never skews the next.
+run_one() {
+  echo "==> benchmark $1"
+  pg_fresh_database "$PG_PORT" "$DB"
+  run_migrations "$DATABASE_URL"
+  rm -rf "$BENCH_STORAGE_DIR" && mkdir -p "$BENCH_STORAGE_DIR"
+  "$ROOT/node_modules/.bin/tsx" "scripts/bench/$1.ts"
+}
+
+if [ "$NAME" = all ]; then
+  for one in "${BENCHMARKS[@]}"; do run_one "$one"; done
+else
+  run_one "$NAME"
+fi

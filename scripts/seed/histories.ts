@@ -8,7 +8,7 @@ import type { NodePgDatabase } from 'drizzle-orm/node-postgres'
 import * as schema from '../../server/db/schema'
 import { formatLength, formatMass } from '../../shared/utils/units'
 import type { EntryKind } from '../../shared/utils/timeline-schemas'
-import { lengthAt, round, seasonFactor, seededRandom, weightAt, type GrowthModel } from './growth'
+import { decimalYear, hatchDate, lengthAt, round, seasonFactor, seededRandom, weightAt, type GrowthModel } from './growth'
 
 export interface SeedContext {
   people: Record<string, string>
@@ -37,34 +37,51 @@ const NOW = new Date('2026-12-01T09:00:00Z')
 const at = (day: string, time = '10:00') => new Date(`${day}T${time}:00Z`)
 const dayOf = (date: Date) => date.toISOString().slice(0, 10)
 
+type PondKey = 'garden' | 'courtyard' | 'whitlock'
+
 interface DemoFishGrowth extends GrowthModel {
   hatchYear: number
-  pond: 'garden' | 'courtyard' | 'whitlock'
+  pond: PondKey
   firstRecord: string
+  /** Young koi are grown on in the small Courtyard pond and moved to the Garden pond at about 40 cm. */
+  movedTo?: { pond: PondKey, on: string }
 }
 
+// Koi: L∞ 70–80 cm with K about 0.3 (see growth.ts), Fulton's K 1.5–1.9 by total length.
 const KOI = { referenceLengthCm: 50, lengthType: 'total' } as const
-const GROWTH: Record<string, DemoFishGrowth> = {
-  Hoshi: { ...KOI, pond: 'garden', hatchYear: 2004, firstRecord: '2007-05-19', maxLengthCm: 78, rate: 0.28, condition: 1.75 },
-  Bento: { ...KOI, pond: 'garden', hatchYear: 2012, firstRecord: '2013-06-02', maxLengthCm: 72, rate: 0.30, condition: 1.62 },
-  Clementine: { ...KOI, pond: 'garden', hatchYear: 2009, firstRecord: '2011-08-14', maxLengthCm: 86, rate: 0.30, condition: 1.9 },
-  Juniper: { ...KOI, pond: 'garden', hatchYear: 2016, firstRecord: '2017-04-30', maxLengthCm: 74, rate: 0.30, condition: 1.7 },
-  Pilot: { ...KOI, pond: 'garden', hatchYear: 2003, firstRecord: '2010-09-01', maxLengthCm: 70, rate: 0.27, condition: 1.52 },
-  Marble: { ...KOI, pond: 'garden', hatchYear: 2019, firstRecord: '2020-05-10', maxLengthCm: 70, rate: 0.32, condition: 1.6 },
-  Saffron: { ...KOI, pond: 'garden', hatchYear: 2014, firstRecord: '2015-06-20', maxLengthCm: 76, rate: 0.30, condition: 1.72 },
-  Tancho: { ...KOI, pond: 'garden', hatchYear: 2018, firstRecord: '2019-07-07', maxLengthCm: 72, rate: 0.32, condition: 1.6 },
-  Nori: { ...KOI, pond: 'garden', hatchYear: 2001, firstRecord: '2006-03-15', maxLengthCm: 80, rate: 0.25, condition: 1.7 },
-  Pebble: { ...KOI, pond: 'garden', hatchYear: 2024, firstRecord: '2024-09-20', maxLengthCm: 72, rate: 0.35, condition: 1.55 },
-  // Fancy goldfish are measured without the tail (standard length), so their K reads high.
-  Button: { pond: 'courtyard', hatchYear: 2020, firstRecord: '2021-04-11', maxLengthCm: 14, rate: 0.6, condition: 4.2, referenceLengthCm: 10, lengthType: 'standard' },
-  Mochi: { pond: 'courtyard', hatchYear: 2017, firstRecord: '2018-05-05', maxLengthCm: 16, rate: 0.55, condition: 4.0, referenceLengthCm: 10, lengthType: 'standard' },
-  Comet: { pond: 'courtyard', hatchYear: 2022, firstRecord: '2022-07-02', maxLengthCm: 28, rate: 0.5, condition: 1.45, referenceLengthCm: 15, lengthType: 'total' },
-  Sunny: { pond: 'courtyard', hatchYear: 2015, firstRecord: '2016-06-18', maxLengthCm: 26, rate: 0.5, condition: 1.5, referenceLengthCm: 15, lengthType: 'total' },
-  Yuzu: { ...KOI, pond: 'courtyard', hatchYear: 2021, firstRecord: '2022-05-21', maxLengthCm: 70, rate: 0.35, condition: 1.6 },
-  Kenzo: { ...KOI, pond: 'courtyard', hatchYear: 2023, firstRecord: '2024-04-27', maxLengthCm: 70, rate: 0.38, condition: 1.55 },
-  Duchess: { ...KOI, pond: 'whitlock', hatchYear: 2011, firstRecord: '2012-05-12', maxLengthCm: 80, rate: 0.30, condition: 1.75 },
-  Rusty: { ...KOI, pond: 'whitlock', hatchYear: 2015, firstRecord: '2016-05-14', maxLengthCm: 82, rate: 0.30, condition: 1.7 },
-  Ghost: { ...KOI, pond: 'whitlock', hatchYear: 2018, firstRecord: '2019-06-01', maxLengthCm: 74, rate: 0.30, condition: 1.55 },
+// Fancy goldfish (ryukin, oranda) are measured without the tail (standard length) and are nearly as
+// deep as half that length and a third as wide: as an ellipsoid that is K(SL) of about 10–13, so we
+// use 10–11 (our own estimate from common-practice body proportions, not a published figure). Slender
+// comets and shubunkins, by total length, have K about 1.3 (common practice).
+const FANCY_GOLDFISH = { referenceLengthCm: 10, lengthType: 'standard' } as const
+const SINGLE_TAIL_GOLDFISH = { referenceLengthCm: 15, lengthType: 'total' } as const
+export const GROWTH: Record<string, DemoFishGrowth> = {
+  Hoshi: { ...KOI, pond: 'garden', hatchYear: 2004, firstRecord: '2007-05-19', maxLengthCm: 78, rate: 0.3, condition: 1.75 },
+  Bento: { ...KOI, pond: 'garden', hatchYear: 2012, firstRecord: '2013-06-02', maxLengthCm: 72, rate: 0.3, condition: 1.68 },
+  Clementine: { ...KOI, pond: 'garden', hatchYear: 2009, firstRecord: '2011-08-14', maxLengthCm: 84, rate: 0.29, condition: 1.9 },
+  Juniper: { ...KOI, pond: 'garden', hatchYear: 2016, firstRecord: '2017-04-30', maxLengthCm: 74, rate: 0.31, condition: 1.7 },
+  Pilot: { ...KOI, pond: 'garden', hatchYear: 2003, firstRecord: '2010-09-01', maxLengthCm: 70, rate: 0.28, condition: 1.52 },
+  Marble: { ...KOI, pond: 'garden', hatchYear: 2019, firstRecord: '2020-05-10', maxLengthCm: 70, rate: 0.3, condition: 1.6 },
+  Saffron: { ...KOI, pond: 'garden', hatchYear: 2014, firstRecord: '2015-06-20', maxLengthCm: 76, rate: 0.3, condition: 1.72 },
+  Tancho: { ...KOI, pond: 'garden', hatchYear: 2018, firstRecord: '2019-07-07', maxLengthCm: 72, rate: 0.31, condition: 1.6 },
+  Nori: { ...KOI, pond: 'garden', hatchYear: 2001, firstRecord: '2006-03-15', maxLengthCm: 80, rate: 0.27, condition: 1.7 },
+  // Hatched in the pond in June 2024 and first netted in September, at about 6 cm.
+  Pebble: { ...KOI, pond: 'garden', hatchYear: 2024, firstRecord: '2024-09-20', maxLengthCm: 72, rate: 0.3, condition: 1.55 },
+  Button: { ...FANCY_GOLDFISH, pond: 'courtyard', hatchYear: 2020, firstRecord: '2021-04-11', maxLengthCm: 12, rate: 0.75, condition: 11 },
+  Mochi: { ...FANCY_GOLDFISH, pond: 'courtyard', hatchYear: 2017, firstRecord: '2018-05-05', maxLengthCm: 13, rate: 0.7, condition: 10 },
+  Comet: { ...SINGLE_TAIL_GOLDFISH, pond: 'courtyard', hatchYear: 2022, firstRecord: '2022-07-02', maxLengthCm: 26, rate: 0.55, condition: 1.3 },
+  Sunny: { ...SINGLE_TAIL_GOLDFISH, pond: 'courtyard', hatchYear: 2015, firstRecord: '2016-06-18', maxLengthCm: 24, rate: 0.55, condition: 1.35 },
+  Yuzu: { ...KOI, pond: 'courtyard', hatchYear: 2021, firstRecord: '2022-05-21', maxLengthCm: 70, rate: 0.32, condition: 1.6, movedTo: { pond: 'garden', on: '2024-05-18' } },
+  Kenzo: { ...KOI, pond: 'courtyard', hatchYear: 2023, firstRecord: '2024-04-27', maxLengthCm: 70, rate: 0.32, condition: 1.55, movedTo: { pond: 'garden', on: '2026-05-16' } },
+  Duchess: { ...KOI, pond: 'whitlock', hatchYear: 2011, firstRecord: '2012-05-12', maxLengthCm: 80, rate: 0.3, condition: 1.75 },
+  Rusty: { ...KOI, pond: 'whitlock', hatchYear: 2015, firstRecord: '2016-05-14', maxLengthCm: 82, rate: 0.3, condition: 1.7 },
+  Ghost: { ...KOI, pond: 'whitlock', hatchYear: 2018, firstRecord: '2019-06-01', maxLengthCm: 74, rate: 0.3, condition: 1.55 },
+}
+
+/** The pond a fish lived in on a given day. */
+function pondAt(name: string, date: Date): PondKey {
+  const g = GROWTH[name]!
+  return g.movedTo && date >= at(g.movedTo.on, '00:00') ? g.movedTo.pond : g.pond
 }
 
 // Body condition over a life where the story needs it: thin when rescued, a slump after surgery,
@@ -82,7 +99,7 @@ function storyCondition(name: string, date: Date): number {
 const SAFFRON_2026: Record<string, number> = { '2026-08-20': 0.98, '2026-10-05': 0.88, '2026-11-20': 0.76 }
 const NORI_DIED = '2025-11-03'
 
-function measurementAuthor(pond: DemoFishGrowth['pond'], date: Date, autumn: boolean): Person {
+function measurementAuthor(pond: PondKey, date: Date, autumn: boolean): Person {
   if (pond === 'whitlock') return 'otherClient'
   if (pond === 'courtyard') return date.getUTCFullYear() >= 2019 ? 'family' : 'owner'
   if (date.getUTCFullYear() < 2019) return 'owner'
@@ -114,11 +131,10 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
       if (name === 'Saffron' && year === 2026) dates.splice(1, 1, ...Object.keys(SAFFRON_2026).map(d => at(d)))
       for (const date of dates) {
         if (date < first || date > NOW || (name === 'Nori' && date >= at(NORI_DIED))) continue
-        const age = year - g.hatchYear + date.getUTCMonth() / 12
-        const length = Math.max(previousLength, lengthAt(g, age) * (1 + (random() - 0.5) * 0.012))
+        const length = Math.max(previousLength, lengthAt(g, hatchDate(g.hatchYear), decimalYear(date)) * (1 + (random() - 0.5) * 0.012))
         previousLength = length
         const weight = weightAt(g, length, seasonFactor(date.getUTCMonth() + 1) * storyCondition(name, date) * (1 + (random() - 0.5) * 0.05))
-        const by = measurementAuthor(g.pond, date, date.getUTCMonth() >= 7)
+        const by = measurementAuthor(pondAt(name, date), date, date.getUTCMonth() >= 7)
         add(name, 'measurement', date, by, measured(by, weight, length, g))
       }
     }
@@ -152,8 +168,10 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
   for (const [name, g] of Object.entries(GROWTH)) {
     for (let year = Math.max(2019, at(g.firstRecord).getUTCFullYear()); year <= 2026; year += 2) {
       if (name === 'Nori' && year > 2025) break
-      const by: Person = g.pond === 'whitlock' ? 'otherClient' : g.pond === 'courtyard' ? 'family' : 'keeper'
-      add(name, 'observation', shift(`${year}-07-12`, jitter(10), '18:00'), by, {
+      const when = shift(`${year}-07-12`, jitter(10), '18:00')
+      const pond = pondAt(name, when)
+      const by: Person = pond === 'whitlock' ? 'otherClient' : pond === 'courtyard' ? 'family' : 'keeper'
+      add(name, 'observation', when, by, {
         signs: ['eating_well'],
         text: pick(random, ['Up at the surface for every feed', 'Colour good, swimming with the group', 'Took food from the hand', 'Calm; fins open']),
       })
@@ -190,7 +208,7 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
     startOn: '2019-05-23', durationDays: 10, givenBy: VET_NAME, notes: 'Every other day, five injections',
   })
   add('Pilot', 'lab_result', at('2019-06-04', '16:00'), 'vet', {
-    panel: 'other', panelName: 'Histopathology', laboratory: 'Riverside Veterinary Laboratory', sample: 'Left globe and retrobulbar mass',
+    panel: 'other', panelName: 'Histopathology', laboratory: 'Exampleton Veterinary Laboratory', sample: 'Left globe and retrobulbar mass',
     findings: 'Spindle-cell tumour behind the globe, removed with clear margins',
   })
   add('Pilot', 'exam', at('2019-06-06', '11:00'), 'vet', {
@@ -236,7 +254,7 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
 
   // ---- Tancho gets a microchip; Mochi's wen is trimmed and he is slow to wake ----
   const chipAnaesthesia = add('Tancho', 'anaesthesia', at('2019-08-10', '10:00'), 'vet', { agent: 'MS-222 (tricaine methanesulfonate)', concentrationMgL: 80, buffer: 'Sodium bicarbonate', waterTemperatureC: 21, inductionMinutes: 3, recoveryMinutes: 6, monitoring: 'Light sedation only' })
-  add('Tancho', 'procedure', at('2019-08-10', '10:10'), 'vet', { name: 'microchip implant', bodySite: 'dorsal musculature below the dorsal fin', side: 'left', surgeon: VET_NAME, outcome: 'Chip reads 941000024681363', anaesthesiaEntryId: chipAnaesthesia.id })
+  add('Tancho', 'procedure', at('2019-08-10', '10:10'), 'vet', { name: 'microchip implant', bodySite: 'dorsal musculature below the dorsal fin', side: 'left', surgeon: VET_NAME, outcome: 'Chip reads 999000024681363', anaesthesiaEntryId: chipAnaesthesia.id })
   const wenAnaesthesia = add('Mochi', 'anaesthesia', at('2023-06-14', '09:40'), 'vet', {
     agent: 'MS-222 (tricaine methanesulfonate)', concentrationMgL: 90, buffer: 'Sodium bicarbonate', waterTemperatureC: 22, inductionMinutes: 5, recoveryMinutes: 34,
     monitoring: 'Slow to right himself; kept in a floating basket with an air stone until swimming',
@@ -263,7 +281,7 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
   add('Saffron', 'problem', at('2026-11-20', '11:20'), 'vet', { name: 'Weight loss, cause not yet known', onset: '2026-08-20', status: 'active' })
   const invented = 'Intervals as printed on the laboratory report (invented for the demo, not clinical references)'
   add('Saffron', 'lab_result', at('2026-11-20', '11:30'), 'vet', {
-    panel: 'haematology', laboratory: 'Riverside Veterinary Laboratory', sample: 'Caudal vein, lithium heparin', intervalSource: invented,
+    panel: 'haematology', laboratory: 'Exampleton Veterinary Laboratory', sample: 'Caudal vein, lithium heparin', intervalSource: invented,
     analytes: [
       { name: 'Packed cell volume', value: 19, unit: '%', low: 25, high: 45 },
       { name: 'Haemoglobin', value: 5.8, unit: 'g/dL', low: 6.5, high: 11 },
@@ -272,7 +290,7 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
     ],
   })
   add('Saffron', 'lab_result', at('2026-11-20', '11:40'), 'vet', {
-    panel: 'biochemistry', laboratory: 'Riverside Veterinary Laboratory', sample: 'Caudal vein, lithium heparin', intervalSource: invented,
+    panel: 'biochemistry', laboratory: 'Exampleton Veterinary Laboratory', sample: 'Caudal vein, lithium heparin', intervalSource: invented,
     analytes: [
       { name: 'Total protein', value: 2.2, unit: 'g/dL', low: 2.6, high: 4.4 },
       { name: 'Albumin', value: 0.8, unit: 'g/dL', low: 0.9, high: 1.7 },
@@ -303,11 +321,17 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
     const withNet = Math.round(Number(typed.weightG) * 1.22)
     tomsWeighing.data = { ...typed, weightG: withNet, entered: { ...(typed.entered as Data), weight: formatMass(withNet, 'us') } }
   }
-  add('Marble', 'measurement', at('2025-05-03', '09:20'), 'keeper', { weightG: 410, lengthCm: 27, lengthType: 'total' }, {
-    error: { by: 'keeper', at: at('2025-05-03', '18:00'), reason: 'This was Pebble in the net, not Marble' },
-  })
+  // Juniper (Sanke) and Bento (Showa) are both red, white and black and within a few centimetres of
+  // each other: her spring weighing went on his record first, and was entered again on hers.
+  const juniperSpring = plan.find(e => e.fish === 'Juniper' && e.kind === 'measurement' && dayOf(e.at).startsWith('2025-04'))
+  if (juniperSpring) {
+    add('Bento', 'measurement', new Date(juniperSpring.at.getTime() - 600_000), juniperSpring.by, { ...juniperSpring.data }, {
+      error: { by: juniperSpring.by, at: new Date(juniperSpring.at.getTime() + 300_000), reason: 'This was Juniper in the net, not Bento: the same size and both red, white and black. Entered again on Juniper.' },
+    })
+  }
 
   await write(tx, context, plan)
+  await writeMoves(tx, context)
   await tx.update(schema.fish).set({ status: 'deceased', version: 2 }).where(eq(schema.fish.id, context.fish.Nori!))
   await tx.insert(schema.fishEdits).values({ fishId: context.fish.Nori!, userId: context.people.owner!, changes: [{ field: 'status', from: 'alive', to: 'deceased' }], createdAt: at(NORI_DIED, '08:01') })
 }
@@ -327,17 +351,17 @@ function measured(by: Person, weight: number, length: number, g: DemoFishGrowth)
     const lengthCm = Number((inches * 2.54).toFixed(3))
     return { weightG, lengthCm, lengthType: g.lengthType, entered: { weight: formatMass(weightG, 'us'), length: formatLength(lengthCm, 'us') } }
   }
-  return { weightG: round(weight, small ? 1 : 10), lengthCm: round(length, 0.5), lengthType: g.lengthType }
+  // Scales read to 1 g below 100 g (fry, goldfish), to 10 g above.
+  return { weightG: round(weight, small || weight < 100 ? 1 : 10), lengthCm: round(length, 0.5), lengthType: g.lengthType }
 }
 
 async function write(tx: SeedTx, context: SeedContext, plan: Planned[]) {
-  const pondOf = Object.fromEntries(Object.entries(GROWTH).map(([name, g]) => [name, context.ponds[g.pond]]))
   const person = (key: Person) => context.people[key]!
   const rows = plan.map((e) => {
     // `data` is the entry as first written; amendments follow in order below.
     const data = e.kind === 'companion' ? { ...e.data, relatedFishId: context.fish[e.related!] } : e.data
     return {
-      id: e.id, fishId: context.fish[e.fish]!, pondId: pondOf[e.fish]!, kind: e.kind, occurredAt: e.at, authorId: person(e.by), data,
+      id: e.id, fishId: context.fish[e.fish]!, pondId: context.ponds[pondAt(e.fish, e.at)], kind: e.kind, occurredAt: e.at, authorId: person(e.by), data,
       relatedFishId: e.related ? context.fish[e.related]! : null,
       linkedEntryId: typeof e.data.anaesthesiaEntryId === 'string' ? e.data.anaesthesiaEntryId : null,
       createdAt: e.at, updatedAt: e.at,
@@ -360,5 +384,31 @@ async function write(tx: SeedTx, context: SeedContext, plan: Planned[]) {
         .set({ enteredInError: true, errorReason: e.error.reason, errorById: person(e.error.by), errorAt: e.error.at, updatedAt: e.error.at })
         .where(eq(schema.timelineEntries.id, e.id))
     }
+  }
+}
+
+/**
+ * Young koi that outgrew the Courtyard pond, moved the way the app moves a fish
+ * (server/utils/fish-moves.ts): the fish's pond, an edit, a move entry with its first revision,
+ * and the audit rows of both ponds. That code needs a request, so the seed writes the same rows.
+ */
+async function writeMoves(tx: SeedTx, context: SeedContext) {
+  const pondNames: Record<PondKey, string> = { garden: 'Garden pond', courtyard: 'Courtyard pond', whitlock: 'Whitlock koi pond' }
+  const actorId = context.people.owner!
+  for (const [name, g] of Object.entries(GROWTH)) {
+    if (!g.movedTo) continue
+    const fishId = context.fish[name]!
+    const from = { id: context.ponds[g.pond], name: pondNames[g.pond] }
+    const to = { id: context.ponds[g.movedTo.pond], name: pondNames[g.movedTo.pond] }
+    const when = at(g.movedTo.on, '11:00')
+    await tx.update(schema.fish).set({ pondId: to.id, version: 2, updatedAt: when }).where(eq(schema.fish.id, fishId))
+    await tx.insert(schema.fishEdits).values({ fishId, userId: actorId, changes: [{ field: 'pond', from: from.name, to: to.name }], createdAt: when })
+    const [entry] = await tx.insert(schema.timelineEntries).values({ fishId, pondId: from.id, kind: 'move', occurredAt: when, authorId: actorId, data: { fromPond: from, toPond: to }, createdAt: when, updatedAt: when }).returning()
+    await tx.insert(schema.timelineRevisions).values({ entryId: entry!.id, revision: 1, occurredAt: when, data: entry!.data, authorId: actorId, createdAt: when })
+    const details = { fishId, fishName: name, fromPondId: from.id, fromPondName: from.name, toPondId: to.id, toPondName: to.name, separatedFrom: [] }
+    await tx.insert(schema.auditEvents).values([
+      { pondId: from.id, actorId, action: 'fish.moved_out', details, createdAt: when },
+      { pondId: to.id, actorId, action: 'fish.moved_in', details, createdAt: when },
+    ])
   }
 }

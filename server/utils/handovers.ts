@@ -88,7 +88,7 @@ export async function acceptHandover(event: H3Event, found: Pick<HandoverRow, 'i
     const state = offerState(offer!, Boolean(offer!.supersededById))
     if (state !== 'open') throw closedOfferError(state, 'offer')
     const pondId = offer!.pondId
-    const [from] = await tx.select({ name: schema.users.name }).from(schema.memberships)
+    const [from] = await tx.select({ name: schema.users.name, email: schema.users.email }).from(schema.memberships)
       .innerJoin(schema.users, eq(schema.users.id, schema.memberships.userId))
       .where(and(eq(schema.memberships.pondId, pondId), eq(schema.memberships.userId, offer!.fromUserId), eq(schema.memberships.role, 'owner')))
     if (!from) throw createError({ statusCode: 409, statusMessage: 'Offer no longer valid', message: 'The person who offered this pond is no longer one of its owners, so the offer no longer stands.' })
@@ -108,6 +108,12 @@ export async function acceptHandover(event: H3Event, found: Pick<HandoverRow, 'i
       pondId, action: 'handover.accepted',
       details: { handoverId: offer!.id, email: offer!.toEmail, fromName: from.name, toName: user.name, fromUserId: offer!.fromUserId, membersOption: offer!.membersOption, members, fishCount },
     }, tx)
+    const [pond] = await tx.select({ name: schema.ponds.name }).from(schema.ponds).where(eq(schema.ponds.id, pondId))
+    await queueMail(tx, {
+      to: from.email, kind: 'handover-accepted', subjectType: 'handover', subjectId: offer!.id,
+      subject: `${user.name} accepted the pond "${pond!.name}" on Fintrail`,
+      text: `Hello ${from.name},\n\n${user.name} accepted your offer: they are now the owner of "${pond!.name}" and its ${fishCount} fish.\n`,
+    })
     return { pondId, fromUserId: offer!.fromUserId, fromName: from.name, fishCount, members }
   })
 }

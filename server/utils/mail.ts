@@ -9,10 +9,15 @@ function useTransport() {
     port: Number(config.smtpPort),
     secure: false,
     ignoreTLS: Number(config.smtpPort) !== 587,
+    // The outbox worker retries: a mail server that hangs must not hold a job for minutes.
+    connectionTimeout: 10_000,
+    greetingTimeout: 10_000,
+    socketTimeout: 30_000,
   })
   return transport
 }
 
-export async function sendMail(message: { to: string, subject: string, text: string }) {
+/** Sends now. Routes do not call this: they use queueMail (server/utils/mail-outbox.ts). */
+export async function sendMail(message: { to: string, subject: string, text: string, html?: string }) {
   await useTransport().sendMail({ from: String(useRuntimeConfig().mailFrom), ...message })
 }

@@ -1,3 +1,5 @@
+import type { PondVolumeMeasurement } from '../utils/pond-volume-schemas'
+
 export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
 export type PondRole = typeof POND_ROLES[number]
 
@@ -30,6 +32,8 @@ export interface PondDetail {
   id: string
   name: string
   volumeLitres: number | null
+  /** How the volume was measured (shape, unit, readings); null when it was typed as a number. */
+  volumeMeasurement: PondVolumeMeasurement | null
   notes: string
   role: PondRole
   /** Kept on after a handover to look, not to change: the client hides what the server would refuse. */
@@ -122,4 +126,22 @@ export interface FishPhotos {
   removed: PhotoItem[]
   canUpload: boolean
   canSetProfile: boolean
+}
+
+/** Where the e-mail announcing an offer stands, shown to its sender with a resend button. */
+export interface OfferMailState {
+  status: 'queued' | 'sent' | 'failed'
+  attempts: number
+  /** A plain reason when the last attempt failed; the raw SMTP error stays in the server log. */
+  lastError: string | null
+  updatedAt: string
+}
+
+export interface PendingInvitation {
+  id: string
+  email: string
+  role: PondRole
+  expiresAt: string
+  createdAt: string
+  mail: OfferMailState | null
 }

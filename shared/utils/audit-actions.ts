@@ -2,17 +2,20 @@
 export const AUDIT_ACTIONS = {
   'invitation.sent': 'Invitation sent',
   'invitation.withdrawn': 'Invitation withdrawn',
+  'invitation.resent': 'Invitation sent again',
   'invitation.accepted': 'Invitation accepted',
   'member.role_changed': 'Role changed',
   'member.read_only_changed': 'Read-only access changed',
   'member.removed': 'Member removed',
   'handover.offered': 'Pond offered to a new owner',
   'handover.withdrawn': 'Pond offer withdrawn',
+  'handover.resent': 'Pond offer sent again',
   'handover.accepted': 'Pond handed over',
   'fish.moved_out': 'Fish moved to another pond',
   'fish.moved_in': 'Fish moved in from another pond',
   'fish.transfer_offered': 'Fish offered to another owner',
   'fish.transfer_withdrawn': 'Fish offer withdrawn',
+  'fish.transfer_resent': 'Fish offer sent again',
   'measurements.imported': 'Measurements imported from a spreadsheet',
   'pond.exported': 'Whole pond exported as an archive',
   'pond.imported': 'Pond created from an archive',
@@ -53,6 +56,7 @@ export function describeAuditEvent(action: string, details: Record<string, unkno
   switch (action) {
     case 'invitation.sent':
     case 'invitation.withdrawn':
+    case 'invitation.resent':
     case 'invitation.accepted':
       return `${d('email')} as ${d('role')}`
     case 'member.role_changed':
@@ -63,6 +67,7 @@ export function describeAuditEvent(action: string, details: Record<string, unkno
       return `${who} (${d('role')})`
     case 'handover.offered':
     case 'handover.withdrawn':
+    case 'handover.resent':
       return `to ${d('email')}; ${MEMBERS_OPTION_WORDS[d('membersOption')] ?? ''}`
     case 'handover.accepted':
       return `from ${d('fromName')} to ${d('toName')}; ${MEMBERS_OPTION_WORDS[d('membersOption')] ?? ''}`
@@ -72,6 +77,7 @@ export function describeAuditEvent(action: string, details: Record<string, unkno
       return `${d('fishName')} from ${d('fromPondName')}${details.fromOwnerName ? ` (${d('fromOwnerName')})` : ''}`
     case 'fish.transfer_offered':
     case 'fish.transfer_withdrawn':
+    case 'fish.transfer_resent':
       return `${d('fishName')} to ${d('email')}`
     case 'measurements.imported':
       return `${d('imported')} of ${d('rows')} rows from ${d('fileName')}`

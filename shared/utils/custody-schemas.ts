@@ -1,6 +1,7 @@
 // Inputs and words of custody: a pond handed to a new owner, a fish moved or rehomed.
 import { z } from 'zod'
 import { emailSchema } from './auth-schemas'
+import type { OfferMailState } from '../types'
 
 export const HANDOVER_MEMBERS_OPTIONS = ['stay', 'read_only', 'leave'] as const
 export type HandoverMembersOption = typeof HANDOVER_MEMBERS_OPTIONS[number]
@@ -48,6 +49,7 @@ export interface HandoverOffer {
   membersOption: HandoverMembersOption
   expiresAt: string
   createdAt: string
+  mail: OfferMailState | null
 }
 
 export const memberReadOnlySchema = z.strictObject({ readOnly: z.boolean('Yes or no') })
@@ -79,6 +81,7 @@ export interface FishTransferOffer {
   email: string
   expiresAt: string
   createdAt: string
+  mail: OfferMailState | null
 }
 
 export interface FishTransferInfo {

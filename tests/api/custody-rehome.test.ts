@@ -15,9 +15,10 @@ async function linkCompanions(client: ApiClient, fishId: string, relatedFishId: 
 }
 
 async function offerFish(owner: ApiClient, fishId: string, email: string, confirmSeparation = false) {
+  const since = new Date()
   const response = await owner.post(`/api/fish/${fishId}/transfers`, { email, confirmSeparation })
   expect(response.status, JSON.stringify(response.body)).toBe(201)
-  return { id: response.body.id as string, token: await tokenFromMail(email, 'offers you the fish', '/transfers/') }
+  return { id: response.body.id as string, token: await tokenFromMail(email, 'offers you the fish', '/transfers/', since) }
 }
 
 async function pondOf(fishId: string) {

@@ -1,15 +1,16 @@
 import { afterAll, describe, expect, it } from 'vitest'
 import { ApiClient } from '../support/client'
 import { closeTestDb, testDb } from '../support/db'
-import { linkIn, waitForMail } from '../support/mail'
+import { linkIn, receivedAfter, waitForMail } from '../support/mail'
 import { createFish, createPond, signedInUser, TEST_PASSWORD, uniqueEmail } from '../support/factories'
 
 afterAll(closeTestDb)
 
 async function invite(owner: ApiClient, pondId: string, email: string, role: 'keeper' | 'vet' | 'owner') {
+  const since = new Date()
   const response = await owner.post(`/api/ponds/${pondId}/invitations`, { email, role })
   expect(response.status).toBe(201)
-  const mail = await waitForMail(email, m => m.subject.includes('invites you'))
+  const mail = await waitForMail(email, receivedAfter(since, m => m.subject.includes('invites you')))
   return new URL(linkIn(mail, '/invitations/')).pathname.split('/').pop()!
 }
 

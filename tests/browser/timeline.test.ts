@@ -101,7 +101,7 @@ describe('the life record in Chromium', () => {
     await form.getByTestId('weight-unit-kg').click()
     await form.getByLabel('Length (cm)').fill('48')
     // 100 · 1900 / 48³ = 190000 / 110592 = 1.718 (Fulton; Nash et al. 2006).
-    await expect.poll(() => form.getByTestId('measurement-preview').textContent()).toContain('Condition factor K 1.72')
+    await expect.poll(() => form.getByTestId('measurement-preview').textContent()).toContain('Condition factor K (TL) 1.72')
     await form.getByTestId('entry-submit').click()
     await form.waitFor({ state: 'detached' })
     await expect.poll(() => page.getByTestId('fact-weight').textContent()).toContain('1.90 kg')
@@ -124,7 +124,7 @@ describe('the life record in Chromium', () => {
 
   it('keeps what a keeper typed when the network fails, and saves it once when it is back', async () => {
     const api = await apiAs(US_KEEPER)
-    const { fishId } = await demoFish(api, 'Courtyard pond', 'Kenzo')
+    const { fishId } = await demoFish(api, 'Garden pond', 'Kenzo')
     const count = async () => {
       const { rows } = await testDb().query(`select count(*)::int as n from timeline_entries where fish_id = $1 and kind = 'measurement'`, [fishId])
       return rows[0].n as number

@@ -53,6 +53,10 @@ export class ApiClient {
     return this.request<T>('PATCH', path, { body: body ?? {}, headers })
   }
 
+  put<T = any>(path: string, body?: unknown, headers?: Record<string, string>) { // eslint-disable-line @typescript-eslint/no-explicit-any
+    return this.request<T>('PUT', path, { body: body ?? {}, headers })
+  }
+
   delete<T = any>(path: string, headers?: Record<string, string>) { // eslint-disable-line @typescript-eslint/no-explicit-any
     return this.request<T>('DELETE', path, { headers })
   }

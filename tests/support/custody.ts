@@ -2,18 +2,19 @@ import { randomUUID } from 'node:crypto'
 import { expect } from 'vitest'
 import type { ApiClient } from './client'
 import { testDb } from './db'
-import { linkIn, waitForMail } from './mail'
+import { linkIn, receivedAfter, waitForMail } from './mail'
 
-/** The token of the newest link to `path` ('/handovers/', '/transfers/') mailed to an address with a subject containing `subject`. */
-export async function tokenFromMail(email: string, subject: string, path: string) {
-  const mail = await waitForMail(email, m => m.subject.includes(subject))
+/** The token of the link to `path` ('/handovers/', '/transfers/') mailed to an address since `since`, with a subject containing `subject`. */
+export async function tokenFromMail(email: string, subject: string, path: string, since = new Date(0)) {
+  const mail = await waitForMail(email, receivedAfter(since, m => m.subject.includes(subject)))
   return new URL(linkIn(mail, path)).pathname.split('/').pop()!
 }
 
 export async function offerPond(owner: ApiClient, pondId: string, email: string, membersOption: 'stay' | 'read_only' | 'leave' = 'stay') {
+  const since = new Date()
   const response = await owner.post(`/api/ponds/${pondId}/handovers`, { email, membersOption })
   expect(response.status, JSON.stringify(response.body)).toBe(201)
-  const token = await tokenFromMail(email, 'offers you the pond', '/handovers/')
+  const token = await tokenFromMail(email, 'offers you the pond', '/handovers/', since)
   return { id: response.body.id as string, token }
 }
 

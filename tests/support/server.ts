@@ -13,7 +13,8 @@ export interface RunningServer {
 
 /** Starts the built production server (.output) on its own port against the test database. */
 /** extraEnv values of null remove a variable the test server would otherwise set. */
-export async function startServer(port: number, extraEnv: Record<string, string | null> = {}): Promise<RunningServer> {
+/** `acceptUnhealthy`: ready once it answers at all (for a server started with a broken part on purpose). */
+export async function startServer(port: number, extraEnv: Record<string, string | null> = {}, options: { acceptUnhealthy?: boolean } = {}): Promise<RunningServer> {
   const env = testEnv()
   mkdirSync(env.storageDir, { recursive: true })
   let output = ''
@@ -50,10 +51,14 @@ export async function startServer(port: number, extraEnv: Record<string, string 
     if (child.exitCode !== null) throw new Error(`server exited early:\n${output}`)
     try {
       const response = await fetch(`${url}/api/health`)
-      if (response.ok) break
+      if (response.ok || (options.acceptUnhealthy && response.status === 503)) break
     }
     catch { /* not listening yet */ }
-    if (Date.now() > deadline) throw new Error(`server did not start on ${url}:\n${output}`)
+    if (Date.now() > deadline) {
+      // Not left running: a stray server would hold the port for the next run.
+      child.kill('SIGKILL')
+      throw new Error(`server did not start on ${url}:\n${output}`)
+    }
     await new Promise(r => setTimeout(r, 150))
   }
   const end = async (signal: NodeJS.Signals) => {

@@ -13,8 +13,8 @@ import {
 
 describe('fultonK', () => {
   it.each([
-    // Source: REFERENCES.md worked example (Fulton 1904; Nash et al. 2006): 1000 g at 40 cm → 1.5625.
-    { label: 'REFERENCES.md: 1000 g at 40 cm', weightG: 1000, lengthCm: 40, expected: 1.5625 },
+    // Source: docs/references.md worked example (Fulton 1904; Nash et al. 2006): 1000 g at 40 cm → 1.5625.
+    { label: 'docs/references.md: 1000 g at 40 cm', weightG: 1000, lengthCm: 40, expected: 1.5625 },
     // Derived from K = 100·W/L³: 100·2000/50³ = 200000/125000 = 1.6.
     { label: 'derived: 2000 g at 50 cm', weightG: 2000, lengthCm: 50, expected: 1.6 },
     // Derived: 100·500/30³ = 50000/27000 = 1.851851…
@@ -43,15 +43,15 @@ describe('fultonK', () => {
 })
 
 describe('length–weight relationship and relative condition', () => {
-  // Source: REFERENCES.md — common carp a = 0.0163, b = 2.935 (Yılmaz & Cerim 2022) → W(40 cm) ≈ 820.8 g.
+  // Source: docs/references.md — common carp a = 0.0163, b = 2.935 (Yılmaz & Cerim 2022) → W(40 cm) ≈ 820.8 g.
   const carp = { a: 0.0163, b: 2.935 }
 
-  it('REFERENCES.md: W(40 cm) ≈ 820.8 g for a = 0.0163, b = 2.935', () => {
+  it('docs/references.md: W(40 cm) ≈ 820.8 g for a = 0.0163, b = 2.935', () => {
     expect(predictedWeight(40, carp.a, carp.b)).toBeCloseTo(820.8, 1)
   })
 
   it.each([
-    // Source: REFERENCES.md — a fish exactly on the curve has Kn = 1.
+    // Source: docs/references.md — a fish exactly on the curve has Kn = 1.
     { label: 'fish on the curve (820.79 g at 40 cm)', weightG: 820.793, expected: 1 },
     // Derived: Kn = W / (a·L^b) = 1000 / 820.793 = 1.21833.
     { label: 'derived: 1000 g at 40 cm', weightG: 1000, expected: 1.21833 },
@@ -123,8 +123,8 @@ describe('length–weight relationship and relative condition', () => {
 
 describe('standard weight and relative weight (Bister et al. 2000, common carp)', () => {
   it.each([
-    // Source: REFERENCES.md worked example — TL 400 mm → Ws ≈ 909.9 g.
-    { label: 'REFERENCES.md: TL 400 mm', totalLengthMm: 400, expected: 909.9 },
+    // Source: docs/references.md worked example — TL 400 mm → Ws ≈ 909.9 g.
+    { label: 'docs/references.md: TL 400 mm', totalLengthMm: 400, expected: 909.9 },
     // Derived: log10 200 = 2.301030; ×2.920 = 6.719008; −4.639 → 2.080008; 10^2.080008 = 120.23 g.
     { label: 'derived: TL 200 mm (lower limit)', totalLengthMm: 200, expected: 120.23 },
     // Derived: log10 500 = 2.698970; ×2.920 = 7.880992; −4.639 → 3.241992; 10^3.241992 = 1745.79 g.
@@ -136,7 +136,7 @@ describe('standard weight and relative weight (Bister et al. 2000, common carp)'
   it.each(['koi', 'Koi', 'common carp', 'Common  Carp', 'Cyprinus carpio', 'CYPRINUS CARPIO', ' cyprinus carpio '])(
     'accepts the species name %j', (species) => {
       expect(hasStandardWeight(species)).toBe(true)
-      // Source: REFERENCES.md — 1000 g at TL 400 mm → Wr ≈ 109.9.
+      // Source: docs/references.md — 1000 g at TL 400 mm → Wr ≈ 109.9.
       expect(relativeWeight(species, 1000, 400)).toBeCloseTo(109.9, 1)
     })
 

@@ -9,8 +9,9 @@ import {
   saltForPondKg,
   saltGramsPerLitre,
 } from '../../shared/utils/doses'
+import { daysSince, DOSE_HELPER_CAUTIONS, roundForScale, roundForSyringe, saltToRaise, WEIGHT_STALE_DAYS } from '../../shared/utils/dose-helpers'
 
-// Source for every formula: REFERENCES.md "Treatment arithmetic". The numbers below are arithmetic
+// Source for every formula: docs/references.md "Treatment arithmetic". The numbers below are arithmetic
 // checks, not dose recommendations.
 
 describe('bath, salt and injection arithmetic', () => {
@@ -24,8 +25,8 @@ describe('bath, salt and injection arithmetic', () => {
   })
 
   it.each([
-    // Source: REFERENCES.md — 0.3 % = 3 g/L.
-    { label: 'REFERENCES.md: 0.3 %', percent: 0.3, expected: 3 },
+    // Source: docs/references.md — 0.3 % = 3 g/L.
+    { label: 'docs/references.md: 0.3 %', percent: 0.3, expected: 3 },
     // Derived: percent × 10 → 0.1 % = 1 g/L, 3 % = 30 g/L.
     { label: 'derived: 0.1 %', percent: 0.1, expected: 1 },
     { label: 'derived: 3 %', percent: 3, expected: 30 },
@@ -110,7 +111,8 @@ describe('dilution conventions', () => {
 
 describe('DOSE_CAUTIONS', () => {
   it.each([
-    // Source: PRODUCT.md and REFERENCES.md — the cautions every dose helper shows.
+    // Source: docs/references.md "Treatment arithmetic" (MS-222 buffering and handling, 21-day withdrawal);
+    // the licensed-veterinarian, formulary and local-code lines are common practice for dose helpers.
     { label: 'licensed veterinarian', pattern: /licensed veterinarian/i },
     { label: 'current formulary', pattern: /current formulary/i },
     { label: 'local codes', pattern: /local .*codes/i },
@@ -123,5 +125,64 @@ describe('DOSE_CAUTIONS', () => {
 
   it('cannot be changed by a caller', () => {
     expect(Object.isFrozen(DOSE_CAUTIONS)).toBe(true)
+  })
+})
+
+describe('dose helpers: rounding to the measuring tool, salt after the last reading, weight age', () => {
+  it.each([
+    // Worked by hand: 10 mg/kg × 1.6 kg = 16 mg; 16 mg / 50 mg/mL = 0.32 mL → a 1 mL syringe (0.01 mL marks): 0.32 mL.
+    { label: 'hand-checked: 10 mg/kg, 1.6 kg, 50 mg/mL', dose: 10, kg: 1.6, mgPerMl: 50, exact: 0.32, rounded: 0.32, step: 0.01 },
+    // Worked by hand: 20 mg/kg × 4.2 kg = 84 mg; 84 / 50 = 1.68 mL → a 3 mL syringe (0.1 mL marks): 1.7 mL.
+    { label: 'hand-checked: 20 mg/kg, 4.2 kg, 50 mg/mL', dose: 20, kg: 4.2, mgPerMl: 50, exact: 1.68, rounded: 1.7, step: 0.1 },
+    // Worked by hand: 25 mg/kg × 9.1 kg = 227.5 mg; 227.5 / 40 = 5.6875 mL → a 10 mL syringe (0.2 mL marks): 5.6 mL.
+    { label: 'hand-checked: 25 mg/kg, 9.1 kg, 40 mg/mL', dose: 25, kg: 9.1, mgPerMl: 40, exact: 5.6875, rounded: 5.6, step: 0.2 },
+  ])('injection $label → $exact mL, drawn as $rounded mL', ({ dose, kg, mgPerMl, exact, rounded, step }) => {
+    const ml = injectionVolumeMl(dose, kg, mgPerMl)!
+    expect(ml).toBeCloseTo(exact, 9)
+    expect(roundForSyringe(ml)).toMatchObject({ value: rounded, step })
+  })
+
+  it.each([
+    // Worked by hand: 2 mg/L × 750 L = 1500 mg = 1.5 g → jeweller's scale (0.01 g): 1.50 g.
+    { label: 'hand-checked: 2 mg/L in 750 L', mgL: 2, litres: 750, grams: 1.5, rounded: 1.5, step: 0.01 },
+    // Worked by hand: 25 mg/L × 1,234 L = 30,850 mg = 30.85 g → 30.85 g.
+    { label: 'hand-checked: 25 mg/L in 1,234 L', mgL: 25, litres: 1234, grams: 30.85, rounded: 30.85, step: 0.01 },
+    // Worked by hand: 100 mg/L × 2,500 L = 250,000 mg = 250 g → kitchen scale (1 g): 250 g.
+    { label: 'hand-checked: 100 mg/L in 2,500 L', mgL: 100, litres: 2500, grams: 250, rounded: 250, step: 1 },
+  ])('bath $label → $grams g', ({ mgL, litres, grams, rounded, step }) => {
+    const g = bathAmountMg(mgL, litres)! / 1000
+    expect(g).toBeCloseTo(grams, 9)
+    expect(roundForScale(g)).toMatchObject({ value: rounded, step })
+  })
+
+  it('salt: from the last reading up to the target (percent × 10 = g/L, REFERENCES.md)', () => {
+    // Worked by hand: 0.3 % − 0.1 % = 0.2 % = 2 g/L; 2 g/L × 10,000 L = 20,000 g = 20 kg.
+    expect(saltToRaise(0.3, 0.1, 10_000)).toEqual({ ok: true, addKg: expect.closeTo(20, 9), fromPercent: 0.1, toPercent: 0.3 })
+    // No reading: from fresh water, 0.3 % of 10,000 L = 30 kg (same as saltForPondKg).
+    expect(saltToRaise(0.3, null, 10_000)).toMatchObject({ ok: true, addKg: saltForPondKg(0.3, 10_000) })
+    // Worked by hand: 20 kg = 20,000 g → platform scale (0.1 kg): 20,000 g.
+    expect(roundForScale(20_000)).toMatchObject({ value: 20_000, step: 100 })
+    expect(saltToRaise(0.3, 0.3, 10_000)).toMatchObject({ ok: false, message: expect.stringMatching(/add no salt/) })
+    expect(saltToRaise(0.3, 0.5, 10_000).ok).toBe(false)
+    expect(saltToRaise(5, 0, 10_000).ok).toBe(false)
+    expect(saltToRaise(0.3, 0, 0).ok).toBe(false)
+  })
+
+  it('impossible amounts are refused: nothing to round', () => {
+    expect(roundForSyringe(0)).toBeNull()
+    expect(roundForSyringe(Number.NaN)).toBeNull()
+    expect(roundForScale(-5)).toBeNull()
+  })
+
+  it('weight age: 90 days is still fresh, 91 is stale', () => {
+    const now = new Date('2026-12-02T10:00:00Z')
+    expect(daysSince('2026-09-03T10:00:00Z', now)).toBe(90)
+    expect(daysSince('2026-09-02T09:00:00Z', now)).toBe(91)
+    expect(WEIGHT_STALE_DAYS).toBe(90)
+  })
+
+  it('the helper cautions cover the veterinarian, the formulary and label, local rules, aeration and filters', () => {
+    const all = DOSE_HELPER_CAUTIONS.join(' ')
+    for (const words of [/licensed veterinarian/, /formulary/, /label/, /local rules/, /[Aa]erate/, /UV/]) expect(all).toMatch(words)
   })
 })

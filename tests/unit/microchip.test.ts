@@ -1,14 +1,14 @@
 import { describe, it, expect } from 'vitest'
 import { isValidMicrochip, parseMicrochip, MICROCHIP_MAX_NATIONAL_ID } from '../../shared/utils/microchip'
 
-// Source: ISO 11784 / 11785 as summarised in REFERENCES.md — 10-bit code + 38-bit national id,
+// Source: ISO 11784 / 11785 as summarised in docs/references.md — 10-bit code + 38-bit national id,
 // shown as 3 + 12 digits; 999 test transponder; 000 invalid; 900–998 manufacturer (ICAR); others ISO 3166-1 numeric.
 // Rows marked "derived" are built from that structure, not copied from the standard's own examples.
 
 describe('parseMicrochip: well-formed numbers', () => {
   it.each([
-    // Source: REFERENCES.md, example of a well-formed test-transponder number.
-    { label: 'REFERENCES.md example 999123456789012', input: '999123456789012', code: '999', number: '123456789012', kind: 'test' },
+    // Source: docs/references.md, example of a well-formed test-transponder number.
+    { label: 'docs/references.md example 999123456789012', input: '999123456789012', code: '999', number: '123456789012', kind: 'test' },
     // Derived: same number with the spaces and hyphens readers and paper forms use.
     { label: 'derived: spaces and hyphens are stripped', input: ' 999 1234-5678 9012 ', code: '999', number: '123456789012', kind: 'test' },
     // Derived: 2^38 − 1 = 274877906943 is the largest 38-bit id, so it must pass.
@@ -33,7 +33,7 @@ describe('parseMicrochip: malformed numbers', () => {
     // Derived: 274877906944 = 2^38 does not fit in 38 bits.
     { label: 'derived: id 274877906944 (2^38) fails', input: '250274877906944', reasonMatch: /274877906943/ },
     { label: 'derived: 999999999999 is above 38 bits', input: '999999999999999', reasonMatch: /38 bits/ },
-    // Source: REFERENCES.md — 000 is not a valid code.
+    // Source: docs/references.md — 000 is not a valid code.
     { label: 'code 000 fails', input: '000123456789012', reasonMatch: /000/ },
     // Derived: the decimal form is exactly 15 digits.
     { label: 'derived: 14 digits fail', input: '99912345678901', reasonMatch: /15 digits.*14/ },

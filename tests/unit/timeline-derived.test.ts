@@ -7,10 +7,10 @@ import { entryCreateSchema, isEnucleation } from '../../shared/utils/timeline-sc
 
 describe('measurementDerived', () => {
   it.each([
-    // Source: REFERENCES.md worked example (Fulton 1904; Nash et al. 2006): 1000 g at 40 cm → K = 1.5625;
+    // Source: docs/references.md worked example (Fulton 1904; Nash et al. 2006): 1000 g at 40 cm → K = 1.5625;
     // Bister et al. 2000: TL 400 mm → Ws ≈ 909.9 g, so 1000 g → Wr ≈ 109.9.
     { data: { weightG: 1000, lengthCm: 40, lengthType: 'total' as const }, species: 'koi', k: 1.5625, wr: 109.9 },
-    // No standard weight is published for goldfish (REFERENCES.md): Wr stays empty.
+    // No standard weight is published for goldfish (docs/references.md): Wr stays empty.
     { data: { weightG: 1000, lengthCm: 40, lengthType: 'total' as const }, species: 'goldfish', k: 1.5625, wr: null },
     // The standard-weight equation uses total length; a fork length gives K but no Wr.
     { data: { weightG: 1000, lengthCm: 40, lengthType: 'fork' as const }, species: 'koi', k: 1.5625, wr: null },

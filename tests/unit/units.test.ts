@@ -11,7 +11,7 @@ import {
 
 describe('convert: exact NIST factors', () => {
   it.each([
-    // Source: NIST SP 811 / Handbook 44 (REFERENCES.md) — each factor is exact by definition.
+    // Source: NIST SP 811 / Handbook 44 (docs/references.md) — each factor is exact by definition.
     { label: 'NIST: 1 lb = 0.45359237 kg', value: 1, from: 'lb', to: 'kg', expected: 0.45359237 },
     { label: 'NIST: 1 oz = 28.349523125 g', value: 1, from: 'oz', to: 'g', expected: 28.349523125 },
     { label: 'NIST: 1 in = 2.54 cm', value: 1, from: 'in', to: 'cm', expected: 2.54 },

@@ -58,18 +58,18 @@ describe('unionizedAmmonia', () => {
   })
 })
 
-describe('as-N conversions and KH (molar masses, REFERENCES.md)', () => {
+describe('as-N conversions and KH (molar masses, docs/references.md)', () => {
   it.each([
-    // Source: REFERENCES.md — NH3/NH3-N = 17.031/14.007 = 1.215892.
+    // Source: docs/references.md — NH3/NH3-N = 17.031/14.007 = 1.215892.
     { label: 'NH3-N → NH3: 1 mg/L → 1.215892', fn: nh3NToNh3, value: 1, expected: 1.215892 },
     { label: 'NH3 → NH3-N: 1 mg/L → 0.822441 (14.007/17.031)', fn: nh3ToNh3N, value: 1, expected: 0.822441 },
-    // Source: REFERENCES.md — NO2⁻/NO2-N = 3.2844.
+    // Source: docs/references.md — NO2⁻/NO2-N = 3.2844.
     { label: 'NO2-N → NO2: 0.5 mg/L → 1.6422', fn: no2NToNo2, value: 0.5, expected: 1.6422 },
     { label: 'NO2 → NO2-N: 3.2844 mg/L → 1', fn: no2ToNo2N, value: 3.2844, expected: 1 },
-    // Source: REFERENCES.md — NO3⁻/NO3-N = 4.4266.
+    // Source: docs/references.md — NO3⁻/NO3-N = 4.4266.
     { label: 'NO3-N → NO3: 10 mg/L → 44.266', fn: no3NToNo3, value: 10, expected: 44.266 },
     { label: 'NO3 → NO3-N: 44.266 mg/L → 10', fn: no3ToNo3N, value: 44.266, expected: 10 },
-    // Source: REFERENCES.md — 1 dKH = 17.848 mg/L as CaCO3; derived: 4 dKH = 71.392.
+    // Source: docs/references.md — 1 dKH = 17.848 mg/L as CaCO3; derived: 4 dKH = 71.392.
     { label: 'KH: 1 dKH → 17.848 mg/L CaCO3', fn: khToCaCO3, value: 1, expected: 17.848 },
     { label: 'derived KH: 4 dKH → 71.392 mg/L CaCO3', fn: khToCaCO3, value: 4, expected: 71.392 },
     { label: 'derived KH: 89.24 mg/L CaCO3 → 5 dKH', fn: caCO3ToKh, value: 89.24, expected: 5 },

@@ -1,4 +1,6 @@
-import { boolean, index, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, index, jsonb, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import type { PondVolumeMeasurement } from '../../../shared/utils/pond-volume-schemas'
+import type { PondWaterTargets } from '../../../shared/utils/water-targets'
 import { timestamps } from './columns'
 import { users } from './users'
 
@@ -8,6 +10,10 @@ export const ponds = pgTable('ponds', {
   id: uuid('id').primaryKey().defaultRandom(),
   name: varchar('name', { length: 120 }).notNull(),
   volumeLitres: numeric('volume_litres', { precision: 12, scale: 1, mode: 'number' }),
+  // How the volume was worked out (shape, unit, readings); null when it was typed as a number.
+  volumeMeasurement: jsonb('volume_measurement').$type<PondVolumeMeasurement>(),
+  // The pond's own target ranges; a parameter not listed uses the published default.
+  waterTargets: jsonb('water_targets').$type<PondWaterTargets>().notNull().default({}),
   notes: text('notes').notNull().default(''),
   ...timestamps,
 })

@@ -24,14 +24,10 @@ export default defineEventHandler(async (event): Promise<FishTransferOffer> => {
       fishId, fromPondId: fish.pondId, fromUserId: user.id, toEmail: input.email, tokenHash,
       confirmedSeparation: companions.length > 0, expiresAt: new Date(Date.now() + HANDOVER_LIFETIME_DAYS * 86_400_000),
     }).returning()
+    await queueMail(tx, transferMail({ to: input.email, fromName: user.name, fishName: fish.name, species: fish.species, link: `${appOrigin(event)}/transfers/${token}`, transferId: created!.id }))
     await recordAudit(event, { pondId: fish.pondId, action: 'fish.transfer_offered', details: { transferId: created!.id, fishId, fishName: fish.name, email: input.email, separatedFrom: companions } }, tx)
     return created!
   })
-  await sendMail({
-    to: input.email,
-    subject: `${user.name} offers you the fish "${fish.name}" on Fintrail`,
-    text: `Hello,\n\n${user.name} would like to rehome the ${fish.species} "${fish.name}" with you on Fintrail. It comes with its whole history: every entry, photo and companion note.\n\nNothing changes until you accept. Open this link to accept it into one of your ponds (valid for ${HANDOVER_LIFETIME_DAYS} days). If you have no account yet, you can create one there with this e-mail address:\n\n${appOrigin(event)}/transfers/${token}\n`,
-  })
   setResponseStatus(event, 201)
-  return { id: offer.id, email: offer.toEmail, expiresAt: offer.expiresAt.toISOString(), createdAt: offer.createdAt.toISOString() }
+  return { id: offer.id, email: offer.toEmail, expiresAt: offer.expiresAt.toISOString(), createdAt: offer.createdAt.toISOString(), mail: { status: 'queued', attempts: 0, lastError: null, updatedAt: offer.createdAt.toISOString() } }
 })

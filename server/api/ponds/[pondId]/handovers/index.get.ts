@@ -9,5 +9,6 @@ export default defineEventHandler(async (event): Promise<HandoverOffer[]> => {
   const rows = await useDb().select().from(schema.pondHandovers)
     .where(and(eq(schema.pondHandovers.pondId, pondId), isNull(schema.pondHandovers.acceptedAt), isNull(schema.pondHandovers.withdrawnAt), gt(schema.pondHandovers.expiresAt, new Date())))
     .orderBy(desc(schema.pondHandovers.createdAt))
-  return rows.map(r => ({ id: r.id, email: r.toEmail, membersOption: r.membersOption, expiresAt: r.expiresAt.toISOString(), createdAt: r.createdAt.toISOString() }))
+  const mail = await latestMailStates('handover', rows.map(r => r.id))
+  return rows.map(r => ({ id: r.id, email: r.toEmail, membersOption: r.membersOption, expiresAt: r.expiresAt.toISOString(), createdAt: r.createdAt.toISOString(), mail: mail.get(r.id) ?? null }))
 })

@@ -1,5 +1,5 @@
 import { and, eq, isNull, sql } from 'drizzle-orm'
-import { HANDOVER_LIFETIME_DAYS, HANDOVER_MEMBERS_WORDS, handoverCreateSchema, type HandoverOffer } from '#shared/utils/custody-schemas'
+import { HANDOVER_LIFETIME_DAYS, handoverCreateSchema, type HandoverOffer } from '#shared/utils/custody-schemas'
 import { pondIdParams } from '#shared/utils/pond-schemas'
 
 export default defineEventHandler(async (event): Promise<HandoverOffer> => {
@@ -25,14 +25,10 @@ export default defineEventHandler(async (event): Promise<HandoverOffer> => {
       pondId, fromUserId: user.id, toEmail: input.email, membersOption: input.membersOption, tokenHash,
       expiresAt: new Date(Date.now() + HANDOVER_LIFETIME_DAYS * 86_400_000),
     }).returning()
+    await queueMail(tx, handoverMail({ to: input.email, fromName: user.name, pondName: pond!.name, fishCount, membersOption: input.membersOption, link: `${appOrigin(event)}/handovers/${token}`, handoverId: created!.id }))
     await recordAudit(event, { pondId, action: 'handover.offered', details: { handoverId: created!.id, email: input.email, membersOption: input.membersOption } }, tx)
     return created!
   })
-  await sendMail({
-    to: input.email,
-    subject: `${user.name} offers you the pond "${pond!.name}" on Fintrail`,
-    text: `Hello,\n\n${user.name} would like to hand the pond "${pond!.name}" over to you on Fintrail: you would become its owner, with its ${fishCount} fish and their whole history.\n\nWhat happens to the people now in the pond: ${HANDOVER_MEMBERS_WORDS[input.membersOption].label.toLowerCase()}. ${HANDOVER_MEMBERS_WORDS[input.membersOption].detail}\n\nNothing changes until you accept. Open this link to accept (valid for ${HANDOVER_LIFETIME_DAYS} days). If you have no account yet, you can create one there with this e-mail address:\n\n${appOrigin(event)}/handovers/${token}\n`,
-  })
   setResponseStatus(event, 201)
-  return { id: offer.id, email: offer.toEmail, membersOption: offer.membersOption, expiresAt: offer.expiresAt.toISOString(), createdAt: offer.createdAt.toISOString() }
+  return { id: offer.id, email: offer.toEmail, membersOption: offer.membersOption, expiresAt: offer.expiresAt.toISOString(), createdAt: offer.createdAt.toISOString(), mail: { status: 'queued', attempts: 0, lastError: null, updatedAt: offer.createdAt.toISOString() } }
 })

@@ -9,17 +9,16 @@ export default defineEventHandler(async (event) => {
   const input = await readValidated(event, invitationCreateSchema)
   const [pond] = await useDb().select({ name: schema.ponds.name }).from(schema.ponds).where(eq(schema.ponds.id, pondId))
   const { token, tokenHash } = newLinkToken()
-  const [invitation] = await useDb().insert(schema.invitations).values({
-    pondId, email: input.email, role: input.role, tokenHash, invitedById: user.id,
-    expiresAt: new Date(Date.now() + INVITATION_LIFETIME_MS),
-  }).returning()
-  const link = `${appOrigin(event)}/invitations/${token}`
-  await sendMail({
-    to: input.email,
-    subject: `${user.name} invites you to the pond "${pond!.name}" on Fintrail`,
-    text: `Hello,\n\n${user.name} invites you to join the pond "${pond!.name}" on Fintrail as ${input.role}.\n\nOpen this link to accept (valid for 14 days). If you have no account yet, you can create one there with this e-mail address:\n\n${link}\n`,
+  // The invitation and its e-mail commit together; the mail leaves through the outbox.
+  const invitation = await useDb().transaction(async (tx) => {
+    const [created] = await tx.insert(schema.invitations).values({
+      pondId, email: input.email, role: input.role, tokenHash, invitedById: user.id,
+      expiresAt: new Date(Date.now() + INVITATION_LIFETIME_MS),
+    }).returning()
+    await queueMail(tx, invitationMail({ to: input.email, inviterName: user.name, pondName: pond!.name, role: input.role, link: `${appOrigin(event)}/invitations/${token}`, invitationId: created!.id }))
+    await recordAudit(event, { pondId, action: 'invitation.sent', details: { invitationId: created!.id, email: input.email, role: input.role } }, tx)
+    return created!
   })
-  await recordAudit(event, { pondId, action: 'invitation.sent', details: { invitationId: invitation!.id, email: input.email, role: input.role } })
   setResponseStatus(event, 201)
-  return { id: invitation!.id, email: invitation!.email, role: invitation!.role, expiresAt: invitation!.expiresAt }
+  return { id: invitation.id, email: invitation.email, role: invitation.role, expiresAt: invitation.expiresAt }
 })

@@ -1,0 +1,27 @@
+import type { WaterTestView } from '#shared/types/water'
+import type { PondFishEvent } from '#shared/utils/pond-events'
+import type { TargetInUse, WaterParameter } from '#shared/utils/water-targets'
+import type { DecimalMark } from '#shared/utils/decimal'
+
+export interface WaterTargetsAnswer {
+  targets: Record<WaterParameter, TargetInUse & { label: string, unit: string }>
+  canEdit: boolean
+}
+
+export function useWaterTests(pondId: MaybeRefOrGetter<string>) {
+  return useFetch<{ waterTests: WaterTestView[] }>(() => `/api/ponds/${toValue(pondId)}/water-tests`, { key: `water-tests-${toValue(pondId)}` })
+}
+
+export function useWaterTargets(pondId: MaybeRefOrGetter<string>) {
+  return useFetch<WaterTargetsAnswer>(() => `/api/ponds/${toValue(pondId)}/water-targets`, { key: `water-targets-${toValue(pondId)}` })
+}
+
+export function usePondFishEvents(pondId: MaybeRefOrGetter<string>) {
+  return useFetch<{ events: PondFishEvent[] }>(() => `/api/ponds/${toValue(pondId)}/fish-events`, { key: `pond-fish-events-${toValue(pondId)}` })
+}
+
+/** The person's decimal mark; 'point' until the account setting exists. */
+export function useDecimalMark() {
+  const session = useSessionStore()
+  return computed<DecimalMark>(() => (session as unknown as { decimalMark?: DecimalMark }).decimalMark ?? 'point')
+}

@@ -1,0 +1,118 @@
+import PgBoss from 'pg-boss'
+import { sql, type SQL } from 'drizzle-orm'
+
+/**
+ * Background jobs kept in PostgreSQL by pg-boss (schema `pgboss` of the app's database), so a job
+ * sent survives a restart of the app. An area adds a worker with `registerJob` (in a Nitro plugin)
+ * and sends work with `sendJob`, inside its own transaction when the job must exist exactly when
+ * the write does.
+ */
+export interface JobOptions {
+  /** Attempts after the first one. */
+  retryLimit?: number
+  /** Seconds before the first retry; doubled on each retry when `retryBackoff` is on. */
+  retryDelay?: number
+  retryBackoff?: boolean
+  /** A job still running after this long is counted as failed (and retried). */
+  expireInSeconds?: number
+  /** How often an idle worker looks for new jobs. */
+  pollingIntervalSeconds?: number
+  /** Jobs of this name run at once in this process. */
+  concurrency?: number
+}
+
+export interface JobContext { id: string, retryCount: number, retryLimit: number, isLastAttempt: boolean }
+export type JobHandler<T> = (data: T, job: JobContext) => Promise<void>
+
+interface Registration { name: string, handler: JobHandler<never>, options: JobOptions }
+
+const JOB_DEFAULTS: Required<JobOptions> = { retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInSeconds: 300, pollingIntervalSeconds: 2, concurrency: 1 }
+const registrations = new Map<string, Registration>()
+let starting: Promise<PgBoss> | undefined
+let boss: PgBoss | undefined
+
+async function startWorker(instance: PgBoss, { name, handler, options }: Registration) {
+  const settings = { ...JOB_DEFAULTS, ...options }
+  // createQueue keeps an existing queue; updateQueue applies changed retry settings to it.
+  await instance.createQueue(name, { name, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
+  await instance.updateQueue(name, { name, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
+  const work = () => instance.work<unknown>(name, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: settings.pollingIntervalSeconds }, async ([job]) => {
+    if (!job) return
+    await (handler as JobHandler<unknown>)(job.data, { id: job.id, retryCount: job.retryCount, retryLimit: job.retryLimit, isLastAttempt: job.retryCount >= job.retryLimit })
+  })
+  for (let i = 0; i < Math.max(1, settings.concurrency); i++) await work()
+}
+
+/** The started pg-boss; the first call starts it (Nitro does not wait for async plugins). */
+export function getBoss(): Promise<PgBoss> {
+  starting ??= (async () => {
+    const url = useRuntimeConfig().databaseUrl || process.env.DATABASE_URL
+    if (!url) throw new Error('NUXT_DATABASE_URL is not set')
+    const instance = new PgBoss({ connectionString: String(url), schema: jobsSchema(), max: 4, application_name: 'fintrail-jobs' })
+    // Without a listener an 'error' event would end the process (e.g. while the database restarts).
+    instance.on('error', error => console.error('[jobs]', error.message))
+    await instance.start()
+    for (const registration of registrations.values()) await startWorker(instance, registration)
+    boss = instance
+    return instance
+  })().catch((error) => {
+    starting = undefined // the next call tries again (the database may have been down)
+    throw error
+  })
+  return starting
+}
+
+/** Adds a worker for the jobs called `name`; a handler that throws is retried with backoff. */
+export function registerJob<T>(name: string, handler: JobHandler<T>, options: JobOptions = {}) {
+  const registration: Registration = { name, handler: handler as JobHandler<never>, options }
+  registrations.set(name, registration)
+  if (boss) startWorker(boss, registration).catch(error => console.error(`[jobs] could not start ${name}:`, error))
+}
+
+/** A pg-boss executor that runs its statements on a Drizzle transaction (or the pool). */
+function executorFor(tx: Tx | Db): PgBoss.Db {
+  return {
+    async executeSql(text, values) {
+      // pg-boss writes $1..$n placeholders; Drizzle's sql template binds the same values in order.
+      const parts = text.split(/\$(\d+)/)
+      const chunks: SQL[] = parts.map((part, i) => i % 2 ? sql`${values[Number(part) - 1] ?? null}` : sql.raw(part))
+      const result = await tx.execute(sql.join(chunks))
+      return { rows: result.rows }
+    },
+  }
+}
+
+/**
+ * Sends a job; with `tx` the job is written in that transaction, so it exists if and only if the
+ * transaction commits. `singletonKey` makes a second send of the same key a no-op while one waits.
+ */
+export async function sendJob(name: string, data: object, options: { tx?: Tx, singletonKey?: string, startAfterSeconds?: number } = {}) {
+  const instance = await getBoss()
+  return instance.send(name, data, {
+    ...(options.tx ? { db: executorFor(options.tx) } : {}),
+    ...(options.singletonKey ? { singletonKey: options.singletonKey } : {}),
+    ...(options.startAfterSeconds ? { startAfter: options.startAfterSeconds } : {}),
+  })
+}
+
+function jobsSchema() {
+  const name = String(useRuntimeConfig().jobsSchema || 'pgboss')
+  if (!/^[a-z_][a-z0-9_]*$/.test(name)) throw new Error(`NUXT_JOBS_SCHEMA "${name}" is not a plain schema name`)
+  return name
+}
+
+/** Jobs waiting to run (all queues), and how long the oldest has waited: for /api/health. */
+export async function queueBacklog(): Promise<{ waiting: number, oldestSeconds: number }> {
+  const result = await usePool().query<{ waiting: string, oldest: number | null }>(
+    `select count(*) as waiting, extract(epoch from now() - min(created_on))::float8 as oldest
+       from ${jobsSchema()}.job where state in ('created', 'retry') and start_after <= now()`)
+  const row = result.rows[0]
+  return { waiting: Number(row?.waiting ?? 0), oldestSeconds: Math.max(0, Math.round(row?.oldest ?? 0)) }
+}
+
+export async function stopJobs() {
+  const instance = boss
+  boss = undefined
+  starting = undefined
+  await instance?.stop({ graceful: true, timeout: 5000, wait: true })
+}
