@@ -11,7 +11,7 @@ export const UPLOAD_WORKER_LIMITS = {
   threads: 2,
   queue: 16,
   heapMb: 160,
-  spreadsheetSeconds: 30,
+  spreadsheetSeconds: 60,
   archiveSeconds: 15 * 60,
 } as const
 

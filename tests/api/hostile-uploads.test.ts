@@ -22,7 +22,8 @@ beforeAll(async () => {
 })
 
 const columns = (name: string, data: Buffer | string, type = XLSX) => uploadSheet(owner.client, `/api/ponds/${pondId}/measurement-imports/columns`, { name, data, type })
-const healthy = async () => (await fetch(`${MAIN_URL}/api/health`)).status
+// A pooled connection may have been closed for idleness while the test built a file: ask once more then.
+const healthy = async () => (await fetch(`${MAIN_URL}/api/health`).catch(() => fetch(`${MAIN_URL}/api/health`))).status
 
 async function importArchive(bytes: Buffer) {
   const response = await fetch(`${MAIN_URL}/api/ponds/import`, { method: 'POST', headers: { 'content-type': 'application/zip', 'cookie': owner.client.cookieHeader() }, body: new Uint8Array(bytes) })
@@ -56,7 +57,7 @@ describe('spreadsheet uploads', () => {
   })
 
   it('answers /api/health while a large legal workbook is parsed in the worker', async () => {
-    const workbook = await largeWorkbook(100_000)
+    const workbook = await largeWorkbook(30_000)
     let answeredDuring = 0
     let done = false
     const upload = columns('large.xlsx', workbook).finally(() => (done = true))
@@ -69,7 +70,7 @@ describe('spreadsheet uploads', () => {
     }
     const response = await upload
     expect(response.status, JSON.stringify(response.body).slice(0, 500)).toBe(200)
-    expect(response.body.rowCount).toBe(100_000)
+    expect(response.body.rowCount).toBe(30_000)
     // Parsed on the event loop, every health request would wait for the parse to end.
     expect(answeredDuring).toBeGreaterThanOrEqual(3)
   }, 120_000)
