@@ -4,6 +4,7 @@ import { fileURLToPath } from 'node:url'
 import { drizzle } from 'drizzle-orm/node-postgres'
 import { migrate } from 'drizzle-orm/node-postgres/migrator'
 import pg from 'pg'
+import { upgradeLegacyEntries } from '../server/db/upgrade-entries'
 
 const databaseUrl = process.env.DATABASE_URL
 if (!databaseUrl) {
@@ -27,8 +28,12 @@ function withoutPassword(url: string) {
 }
 
 try {
-  await migrate(drizzle(pool), { migrationsFolder })
+  const db = drizzle(pool)
+  await migrate(db, { migrationsFolder })
   console.log('migrations applied')
+  // Data written in an earlier form: once per entry, each as a new revision (see shared/utils/timeline-upgrade.ts).
+  const upgraded = await db.transaction(tx => upgradeLegacyEntries(tx))
+  if (upgraded) console.log(`${upgraded} timeline entries brought to the current form`)
 }
 catch (error) {
   console.error(`migrate: could not apply the migrations in ${migrationsFolder} to ${withoutPassword(databaseUrl)}`)

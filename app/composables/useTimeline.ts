@@ -60,3 +60,22 @@ export function useTimeline(fishId: MaybeRefOrGetter<string>) {
 
   return { kinds, entries, nextCursor, loadMore, loadingMore, moreError, pending: first.pending, error: first.error, refresh: first.refresh }
 }
+
+export interface PondVet { userId: string, name: string }
+
+/** The pond's vets, for "performed by" and "on the instruction of": chosen, so the record can trace them. */
+export function usePondVets(pondId: MaybeRefOrGetter<string>) {
+  const members = useFetch<{ userId: string, name: string, role: string, readOnly: boolean }[]>(() => `/api/ponds/${toValue(pondId)}/members`, {
+    key: `pond-members-${toValue(pondId)}`,
+  })
+  const vets = computed<PondVet[]>(() => (members.data.value ?? []).filter(m => m.role === 'vet' && !m.readOnly).map(m => ({ userId: m.userId, name: m.name })))
+  return { vets, pending: members.pending }
+}
+
+/** The fish's earlier anaesthetics, newest first, shown before the vet starts another. */
+export function useEarlierAnaesthetics(fishId: MaybeRefOrGetter<string>) {
+  return useFetch<TimelinePage>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+    key: `fish-anaesthetics-${toValue(fishId)}`,
+    query: { kind: 'anaesthesia', limit: 20 },
+  })
+}

@@ -19,12 +19,23 @@ export function todayIso() {
 
 export interface DoseTreatment {
   drug: string
-  route: 'bath' | 'dip' | 'injection'
+  route: 'tank_bath' | 'pond_immersion' | 'dip' | 'injection'
   dose: number
   doseUnit: 'mg/L' | '%' | 'mg/kg'
   injectionSite?: string
+  /** Minutes in the solution: required for a dip or a hospital-tank bath. */
+  exposureMinutes?: number
+  volumeTreatedL?: number
+  amountAdded?: number
+  amountAddedUnit?: 'g' | 'kg'
   notes: string
-  instructedBy?: string
+  /** A vet of the pond (their user id), when someone else records what they gave. */
+  instructedById?: string
+}
+
+/** A bath in the whole pond is prolonged immersion; in a separate tank it is a timed hospital-tank bath. */
+export function bathRoute(where: 'pond' | 'tank'): DoseTreatment['route'] {
+  return where === 'pond' ? 'pond_immersion' : 'tank_bath'
 }
 
 /**
@@ -35,7 +46,9 @@ export function treatmentEntry(dose: DoseTreatment, role: PondRole, givenBy: str
   const data: Record<string, unknown> = {
     drug: dose.drug, route: dose.route, dose: dose.dose, doseUnit: dose.doseUnit, startOn: todayIso(), givenBy, notes: dose.notes,
   }
-  if (dose.injectionSite) data.injectionSite = dose.injectionSite
-  if (role !== 'vet') data.givenOnInstructionOf = dose.instructedBy ?? ''
+  for (const key of ['injectionSite', 'exposureMinutes', 'volumeTreatedL', 'amountAdded', 'amountAddedUnit'] as const) {
+    if (dose[key] !== undefined && dose[key] !== '') data[key] = dose[key]
+  }
+  if (role !== 'vet') data.instructedById = dose.instructedById ?? ''
   return { id: crypto.randomUUID(), kind: 'treatment' as const, occurredAt: new Date().toISOString(), data }
 }

@@ -1,8 +1,7 @@
 // What each entry form holds while it is being typed (text, in the person's own units), and how
 // it becomes the stored entry (numbers, metric) and back again for an amendment.
 import type { UnitSystem } from '#shared/types'
-import type { EntryKind } from '#shared/utils/timeline-schemas'
-import { BODY_SYSTEMS } from '#shared/utils/timeline-schemas'
+import { BODY_SYSTEMS, TIMED_ROUTES, TREATMENT_ROUTES, isTricaine, type EntryKind, type TreatmentRoute } from '#shared/utils/timeline-schemas'
 import { convert, formatLength, formatMass } from '#shared/utils/units'
 
 type Data = Record<string, unknown>
@@ -121,7 +120,20 @@ function examBlank(): ExamForm {
 // ---- procedure and anaesthesia ----------------------------------------------------------------
 
 export interface AnaesthesiaForm { agent: string, concentration: string, buffer: string, waterTemperature: string, induction: string, recovery: string, monitoring: string }
-export interface ProcedureForm { name: string, bodySite: string, side: string, surgeon: string, notes: string, outcome: string, recheckOn: string, withAnaesthesia: boolean, anaesthesia: AnaesthesiaForm }
+export interface ProcedureForm {
+  code: string
+  name: string
+  bodySite: string
+  side: string
+  /** A vet of the pond chosen from the list, or '' for someone named in `performedBy`. */
+  performedById: string
+  performedBy: string
+  notes: string
+  outcome: string
+  recheckOn: string
+  withAnaesthesia: boolean
+  anaesthesia: AnaesthesiaForm
+}
 
 function anaesthesiaBlank(): AnaesthesiaForm {
   return { agent: 'MS-222 (tricaine methanesulfonate)', concentration: '', buffer: 'Sodium bicarbonate', waterTemperature: '', induction: '', recovery: '', monitoring: '' }
@@ -131,7 +143,8 @@ function anaesthesiaData(form: AnaesthesiaForm, units: UnitSystem): Data {
   const temperature = typedNumber(form.waterTemperature)
   const celsius = temperature === undefined || Number.isNaN(temperature) ? temperature : Number(convert(temperature, units === 'us' ? 'f' : 'c', 'c').toFixed(2))
   return {
-    agent: form.agent, concentrationMgL: typedNumber(form.concentration), buffer: form.buffer,
+    // A buffer belongs to MS-222 only; one typed before the agent changed is not sent.
+    agent: form.agent, concentrationMgL: typedNumber(form.concentration), buffer: isTricaine(form.agent) ? form.buffer : '',
     waterTemperatureC: celsius, inductionMinutes: typedNumber(form.induction), recoveryMinutes: typedNumber(form.recovery),
     monitoring: form.monitoring,
     entered: units === 'us' && temperature !== undefined ? { waterTemperature: `${form.waterTemperature.trim()} °F` } : undefined,
@@ -156,11 +169,19 @@ export interface TreatmentForm {
   dose: string
   doseUnit: string
   startOn: string
-  endMode: 'duration' | 'end' | 'open'
+  endMode: 'duration' | 'end' | 'open' | 'doses'
   durationDays: string
   endOn: string
+  doseCount: string
+  intervalHours: string
+  /** Local time of the first dose on `startOn`, for a course given as doses. */
+  firstDoseTime: string
+  exposureMinutes: string
+  volumeTreated: string
+  amountAdded: string
+  amountAddedUnit: string
   givenBy: string
-  givenOnInstructionOf: string
+  instructedById: string
   notes: string
 }
 export interface LabForm {
@@ -189,7 +210,7 @@ export interface EntryForms {
   death: DeathForm
 }
 
-export interface FormContext { units: UnitSystem, userName: string, limited: boolean }
+export interface FormContext { units: UnitSystem, userId: string, userName: string, limited: boolean }
 
 export function blankForm<K extends EntryKind>(kind: K, context: FormContext): EntryForms[K] {
   const today = todayLocal()
@@ -198,14 +219,18 @@ export function blankForm<K extends EntryKind>(kind: K, context: FormContext): E
     observation: () => ({ signs: [], text: '', photoId: '' }),
     exam: examBlank,
     problem: () => ({ name: '', onset: today, status: context.limited ? 'suspected' : 'active', resolvedOn: '', notes: '' }),
-    procedure: () => ({ name: '', bodySite: '', side: '', surgeon: context.userName, notes: '', outcome: '', recheckOn: '', withAnaesthesia: true, anaesthesia: anaesthesiaBlank() }),
+    procedure: () => ({
+      code: '', name: '', bodySite: '', side: '', performedById: context.limited ? '' : context.userId, performedBy: '', notes: '', outcome: '', recheckOn: '',
+      withAnaesthesia: true, anaesthesia: anaesthesiaBlank(),
+    }),
     anaesthesia: anaesthesiaBlank,
     treatment: () => ({
-      drug: '', route: 'bath', injectionSite: '', dose: '', doseUnit: 'mg/L', startOn: today, endMode: 'duration', durationDays: '', endOn: '',
-      givenBy: context.userName, givenOnInstructionOf: '', notes: '',
+      drug: '', route: '', injectionSite: '', dose: '', doseUnit: 'mg/L', startOn: today, endMode: 'duration', durationDays: '', endOn: '',
+      doseCount: '', intervalHours: '24', firstDoseTime: nowLocalTime(), exposureMinutes: '', volumeTreated: '', amountAdded: '', amountAddedUnit: 'g',
+      givenBy: context.userName, instructedById: '', notes: '',
     }),
     lab_result: () => ({ panel: 'haematology', panelName: '', laboratory: '', sample: '', intervalSource: '', analytes: [], organisms: [], findings: '' }),
-    companion: () => ({ relatedFishId: '', relation: 'always_together', relationText: '', note: '' }),
+    companion: () => ({ relatedFishId: '', relation: 'stays_close', relationText: '', note: '' }),
     death: () => ({ cause: '', euthanased: false, necropsy: '' }),
   }
   return blanks[kind]()
@@ -230,17 +255,29 @@ export function formData(kind: EntryKind, form: EntryForms[EntryKind], units: Un
     }
     case 'procedure': {
       const f = form as ProcedureForm
-      return { name: f.name, bodySite: f.bodySite, side: f.side || undefined, surgeon: f.surgeon, notes: f.notes, outcome: f.outcome, recheckOn: f.recheckOn || undefined }
+      return {
+        code: f.code || undefined, name: f.name, bodySite: f.bodySite, side: f.side || undefined,
+        performedById: f.performedById || undefined, performedBy: f.performedById ? '' : f.performedBy,
+        notes: f.notes, outcome: f.outcome, recheckOn: f.recheckOn || undefined,
+      }
     }
     case 'anaesthesia': return anaesthesiaData(form as AnaesthesiaForm, units)
     case 'treatment': {
       const f = form as TreatmentForm
+      const doses = f.endMode === 'doses'
+      const amount = typedNumber(f.amountAdded)
       return {
-        drug: f.drug, route: f.route, injectionSite: f.route === 'injection' ? textOrUndefined(f.injectionSite) : undefined,
+        drug: f.drug, route: f.route || undefined, injectionSite: f.route === 'injection' ? textOrUndefined(f.injectionSite) : undefined,
         dose: typedNumber(f.dose), doseUnit: f.doseUnit, startOn: f.startOn,
         durationDays: f.endMode === 'duration' ? typedNumber(f.durationDays) : undefined,
         endOn: f.endMode === 'end' ? f.endOn || undefined : undefined,
-        givenBy: f.givenBy, givenOnInstructionOf: textOrUndefined(f.givenOnInstructionOf), notes: f.notes,
+        doseCount: doses ? typedNumber(f.doseCount) : undefined,
+        intervalHours: doses ? typedNumber(f.intervalHours) : undefined,
+        firstDoseAt: doses ? occurredAtFrom(f.startOn, f.firstDoseTime) : undefined,
+        exposureMinutes: TIMED_ROUTES.includes(f.route as TreatmentRoute) ? typedNumber(f.exposureMinutes) : undefined,
+        volumeTreatedL: typedNumber(f.volumeTreated),
+        amountAdded: amount, amountAddedUnit: amount === undefined ? undefined : f.amountAddedUnit,
+        givenBy: f.givenBy, instructedById: f.instructedById || undefined, notes: f.notes,
       }
     }
     case 'lab_result': {
@@ -279,10 +316,26 @@ export function formFromData(kind: EntryKind, data: Data, context: FormContext):
       for (const finding of (data.findings ?? []) as { system: string, state: string, note: string }[]) form.findings[finding.system] = { state: finding.state, note: finding.note ?? '' }
       return { ...form, reason: shown(data.reason), history: shown(data.history), assessment: shown(data.assessment), plan: shown(data.plan) }
     }
-    case 'procedure': return { ...(blank as ProcedureForm), ...stringsOf(data, ['name', 'bodySite', 'side', 'surgeon', 'notes', 'outcome', 'recheckOn']), withAnaesthesia: false }
+    case 'procedure': {
+      const form = { ...(blank as ProcedureForm), ...stringsOf(data, ['code', 'name', 'bodySite', 'side', 'performedById', 'notes', 'outcome', 'recheckOn']), withAnaesthesia: false }
+      // Entries from before "Performed by" said "Surgeon".
+      form.performedBy = data.performedById ? '' : shown(data.performedBy ?? data.surgeon)
+      return form
+    }
     case 'treatment': {
-      const form = { ...(blank as TreatmentForm), ...stringsOf(data, ['drug', 'route', 'injectionSite', 'dose', 'doseUnit', 'startOn', 'durationDays', 'endOn', 'givenBy', 'givenOnInstructionOf', 'notes']) }
-      form.endMode = data.endOn ? 'end' : data.durationDays !== undefined ? 'duration' : 'open'
+      const form = {
+        ...(blank as TreatmentForm),
+        ...stringsOf(data, ['drug', 'injectionSite', 'dose', 'startOn', 'durationDays', 'endOn', 'doseCount', 'intervalHours', 'exposureMinutes', 'amountAdded', 'givenBy', 'instructedById', 'notes']),
+        // A route or unit stored in an earlier form ('bath', 'dose') is not offered: the person chooses again.
+        route: (TREATMENT_ROUTES as readonly string[]).includes(String(data.route)) ? String(data.route) : '',
+        doseUnit: data.doseUnit === 'dose' ? 'per fish' : shown(data.doseUnit),
+        volumeTreated: shown(data.volumeTreatedL), amountAddedUnit: shown(data.amountAddedUnit) || 'g',
+      }
+      form.endMode = data.endOn ? 'end' : data.durationDays !== undefined ? 'duration' : data.doseCount !== undefined ? 'doses' : 'open'
+      if (typeof data.firstDoseAt === 'string') {
+        const first = new Date(data.firstDoseAt)
+        form.firstDoseTime = `${String(first.getHours()).padStart(2, '0')}:${String(first.getMinutes()).padStart(2, '0')}`
+      }
       return form
     }
     case 'lab_result': return {

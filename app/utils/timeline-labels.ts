@@ -49,12 +49,23 @@ export const BODY_SYSTEM_LABELS: Record<string, string> = {
 
 export const FINDING_LABELS: Record<string, string> = { normal: 'Normal', abnormal: 'Abnormal', not_examined: 'Not examined' }
 export const SIDE_LABELS: Record<string, string> = { left: 'Left', right: 'Right', both: 'Both', not_applicable: 'Not applicable' }
-export const ROUTE_LABELS: Record<string, string> = { bath: 'Bath', dip: 'Dip', injection: 'Injection', in_feed: 'In feed', topical: 'Topical' }
+// 'bath' was stored before baths were split into hospital tank and whole pond.
+export const ROUTE_LABELS: Record<string, string> = {
+  dip: 'Dip', tank_bath: 'Hospital-tank bath', pond_immersion: 'Whole pond (prolonged immersion)', injection: 'Injection', in_feed: 'In feed', topical: 'Topical',
+  bath: 'Bath',
+}
+// 'dose' was stored before it read "per fish".
+export const DOSE_UNIT_LABELS: Record<string, string> = { 'mg/L': 'mg/L (ppm)', 'dose': 'per fish' }
+export const doseUnitLabel = (unit: string) => DOSE_UNIT_LABELS[unit] ?? unit
+export const PROCEDURE_LABELS: Record<string, string> = {
+  enucleation: 'Enucleation (eye removal)', mass_removal: 'Mass removal', biopsy: 'Biopsy', fin_trim: 'Fin trim', wound_care: 'Wound care',
+  microchip_implant: 'Microchip implant', wen_trim: 'Wen trim', gill_clip: 'Gill clip', skin_scrape: 'Skin scrape', other: 'Other',
+}
 export const PANEL_LABELS: Record<string, string> = {
   haematology: 'Haematology', biochemistry: 'Biochemistry', skin_scrape: 'Skin scrape', gill_biopsy: 'Gill biopsy', culture: 'Culture', other: 'Other test',
 }
 export const RELATION_LABELS: Record<string, string> = {
-  guides: 'Guides', always_together: 'Always together', aggressive_toward: 'Aggressive toward', avoids: 'Avoids', other: 'Other',
+  leads: 'Leads (is followed)', stays_close: 'Keeps close', chases: 'Chases', avoids: 'Avoids', spawns_with: 'Spawns with', parent_of: 'Parent of', other: 'Other',
 }
 export const PROBLEM_STATUS_LABELS: Record<string, string> = { suspected: 'Suspected', active: 'Active', resolved: 'Resolved' }
 export const LENGTH_TYPE_LABELS: Record<string, string> = { total: 'total length', fork: 'fork length', standard: 'standard length' }

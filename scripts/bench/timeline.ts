@@ -42,7 +42,7 @@ async function seed() {
             else jsonb_build_object('name', 'Problem ' || i, 'onset', '2006-01-01', 'status', 'resolved', 'resolvedOn', '2007-01-01') end
           when 6 then case when i <= 100 then jsonb_build_object('relatedFishId', $4::text, 'relation', 'always_together')
             else jsonb_build_object('signs', jsonb_build_array('eating_well'), 'text', 'Entry ' || i) end
-          else jsonb_build_object('name', case when i = 7 then 'enucleation' else 'fin trim' end, 'side', case when i = 7 then 'left' else 'not_applicable' end, 'surgeon', 'Bench Vet')
+          else jsonb_build_object('code', case when i = 7 then 'enucleation' else 'fin_trim' end, 'side', case when i = 7 then 'left' else 'not_applicable' end, 'performedBy', 'Bench Vet')
         end
       from generate_series(1, ${ENTRIES}) i
       returning id, occurred_at, data, author_id
@@ -82,7 +82,7 @@ async function main() {
     const fishAccessSql = 'select f.*, m.role from fish f join memberships m on m.pond_id = f.pond_id and m.user_id = $2 where f.id = $1 limit 1'
     const routes = [
       { label: `GET /api/fish/:id/timeline (first page of ${ENTRIES} entries)`, path: `/api/fish/${fishId}/timeline`, statement: query(timelinePageSql(fishId, { kinds: [], cursor: null, limit: 50 })!), access: fishAccessSql },
-      { label: `GET /api/fish/:id/facts (profile header, ${ENTRIES} entries)`, path: `/api/fish/${fishId}/facts`, statement: query(standingFactsSql(fishId, today)), access: fishAccessSql },
+      { label: `GET /api/fish/:id/facts (profile header, ${ENTRIES} entries)`, path: `/api/fish/${fishId}/facts`, statement: query(standingFactsSql(fishId, today, today)), access: fishAccessSql },
       { label: `GET /api/ponds/:id/fish (${POND_FISH} fish with K and weight-loss flag)`, path: `/api/ponds/${pondId}/fish`, statement: query(fishListSql(pondId, {})), access: 'select role from memberships where pond_id = $1 and user_id = $2 limit 1' },
       { label: `GET /api/fish/:id/growth (${ENTRIES * 2 / 8} measurements, markers)`, path: `/api/fish/${fishId}/growth`, statement: query(growthSql(fishId)), access: fishAccessSql },
     ]

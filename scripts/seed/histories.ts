@@ -199,7 +199,7 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
     monitoring: 'Gill movements slow and regular throughout; pond water over the gills during surgery',
   })
   add('Pilot', 'procedure', at('2019-05-23', '10:30'), 'vet', {
-    name: 'enucleation', bodySite: 'left eye', side: 'left', surgeon: VET_NAME,
+    code: 'enucleation', name: 'Left eye removed with the retrobulbar mass', bodySite: 'left eye', side: 'left', performedBy: VET_NAME,
     notes: 'Globe and retrobulbar mass removed together; haemostasis with pressure', outcome: 'Socket closed with absorbable sutures; upright and swimming at 18 minutes',
     recheckOn: '2019-06-06', anaesthesiaEntryId: pilotAnaesthesia.id,
   })
@@ -216,9 +216,9 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
     findings: [{ system: 'eyes', state: 'abnormal', note: 'Left socket closed, sutures dissolving, no swelling' }],
     assessment: 'Healing well', plan: 'No further visits needed for the eye',
   })
-  add('Clementine', 'companion', at('2019-07-10', '18:30'), 'keeper', { relatedFishId: 'Pilot', relation: 'guides', note: 'Since the eye came out Pilot swims just behind Clementine’s left side and follows her to the food' }, { related: 'Pilot' })
+  add('Clementine', 'companion', at('2019-07-10', '18:30'), 'keeper', { relatedFishId: 'Pilot', relation: 'leads', note: 'Since the eye came out Pilot swims just behind Clementine’s left side and follows her to the food' }, { related: 'Pilot' })
   add('Pilot', 'observation', at('2019-07-10', '18:35'), 'keeper', { signs: ['eating_well'], text: 'Finds the food by following Clementine' })
-  add('Hoshi', 'companion', at('2012-06-02', '17:00'), 'owner', { relatedFishId: 'Nori', relation: 'always_together', note: 'Always side by side since Hoshi arrived' }, { related: 'Nori' })
+  add('Hoshi', 'companion', at('2012-06-02', '17:00'), 'owner', { relatedFishId: 'Nori', relation: 'stays_close', note: 'Always side by side since Hoshi arrived' }, { related: 'Nori' })
 
   // ---- Garden pond, spring 2022: Ichthyobodo, treated with a salt bath ----
   for (const name of ['Bento', 'Juniper', 'Tancho']) {
@@ -247,19 +247,19 @@ export async function seedHistories(tx: SeedTx, context: SeedContext) {
   })
   const parasites = add('Bento', 'problem', at('2022-04-10', '11:40'), 'vet', { name: 'Ichthyobodo infestation', onset: '2022-04-06', status: 'active', notes: 'Juniper and Tancho flashing too' })
   parasites.amendments.push({ by: 'vet', at: at('2022-04-26', '12:00'), reason: 'Scrape clear after the salt bath', data: { name: 'Ichthyobodo infestation', onset: '2022-04-06', status: 'resolved', resolvedOn: '2022-04-26', notes: 'Juniper and Tancho flashing too' } })
-  const salt = { drug: 'Salt (sodium chloride), whole-pond bath', route: 'bath', dose: 3, doseUnit: 'g/L', startOn: '2022-04-10', durationDays: 14, notes: 'Pond at 0.3 %; added in three steps over two days' }
+  const salt = { drug: 'Salt (sodium chloride), whole-pond bath', route: 'pond_immersion', dose: 3, doseUnit: 'g/L', startOn: '2022-04-10', durationDays: 14, notes: 'Pond at 0.3 %; added in three steps over two days' }
   add('Bento', 'treatment', at('2022-04-10', '12:00'), 'vet', { ...salt, givenBy: VET_NAME })
-  for (const name of ['Juniper', 'Tancho']) add(name, 'treatment', at('2022-04-10', '17:00'), 'keeper', { ...salt, givenBy: 'Priya Anand', givenOnInstructionOf: VET_NAME })
+  for (const name of ['Juniper', 'Tancho']) add(name, 'treatment', at('2022-04-10', '17:00'), 'keeper', { ...salt, givenBy: 'Priya Anand', instructedBy: VET_NAME })
   add('Bento', 'lab_result', at('2022-04-26', '11:00'), 'vet', { panel: 'skin_scrape', sample: 'Repeat scrape', findings: 'No Ichthyobodo seen in three fields' })
 
   // ---- Tancho gets a microchip; Mochi's wen is trimmed and he is slow to wake ----
   const chipAnaesthesia = add('Tancho', 'anaesthesia', at('2019-08-10', '10:00'), 'vet', { agent: 'MS-222 (tricaine methanesulfonate)', concentrationMgL: 80, buffer: 'Sodium bicarbonate', waterTemperatureC: 21, inductionMinutes: 3, recoveryMinutes: 6, monitoring: 'Light sedation only' })
-  add('Tancho', 'procedure', at('2019-08-10', '10:10'), 'vet', { name: 'microchip implant', bodySite: 'dorsal musculature below the dorsal fin', side: 'left', surgeon: VET_NAME, outcome: 'Chip reads 999000024681363', anaesthesiaEntryId: chipAnaesthesia.id })
+  add('Tancho', 'procedure', at('2019-08-10', '10:10'), 'vet', { code: 'microchip_implant', name: 'Microchip implant', bodySite: 'dorsal musculature below the dorsal fin', side: 'left', performedBy: VET_NAME, outcome: 'Chip reads 999000024681363', anaesthesiaEntryId: chipAnaesthesia.id })
   const wenAnaesthesia = add('Mochi', 'anaesthesia', at('2023-06-14', '09:40'), 'vet', {
     agent: 'MS-222 (tricaine methanesulfonate)', concentrationMgL: 90, buffer: 'Sodium bicarbonate', waterTemperatureC: 22, inductionMinutes: 5, recoveryMinutes: 34,
     monitoring: 'Slow to right himself; kept in a floating basket with an air stone until swimming',
   })
-  add('Mochi', 'procedure', at('2023-06-14', '10:00'), 'vet', { name: 'wen trim', bodySite: 'wen over both eyes', side: 'both', surgeon: VET_NAME, outcome: 'Wen trimmed clear of both eyes; slow recovery, normal by evening', recheckOn: '2023-06-28', anaesthesiaEntryId: wenAnaesthesia.id })
+  add('Mochi', 'procedure', at('2023-06-14', '10:00'), 'vet', { code: 'wen_trim', name: 'Wen trim', bodySite: 'wen over both eyes', side: 'both', performedBy: VET_NAME, outcome: 'Wen trimmed clear of both eyes; slow recovery, normal by evening', recheckOn: '2023-06-28', anaesthesiaEntryId: wenAnaesthesia.id })
   add('Sunny', 'observation', at('2020-05-30', '09:00'), 'family', { signs: ['white_spots', 'flashing'], text: 'A few white spots on the tail' })
   add('Rusty', 'lab_result', at('2024-04-23', '12:00'), 'vet', { panel: 'gill_biopsy', sample: 'Gill clip at the spring check', organisms: [{ name: 'Dactylogyrus (gill fluke)', count: 'Occasional: 1 in the clip' }], findings: 'Within what a healthy pond shows; no treatment' })
 
@@ -357,9 +357,15 @@ function measured(by: Person, weight: number, length: number, g: DemoFishGrowth)
 
 async function write(tx: SeedTx, context: SeedContext, plan: Planned[]) {
   const person = (key: Person) => context.people[key]!
+  // The demo vet performs and prescribes by account, as the forms record it.
+  const withPeople = (data: Data): Data => ({
+    ...data,
+    ...(data.performedBy === VET_NAME ? { performedById: person('vet') } : {}),
+    ...(data.instructedBy === VET_NAME ? { instructedById: person('vet') } : {}),
+  })
   const rows = plan.map((e) => {
     // `data` is the entry as first written; amendments follow in order below.
-    const data = e.kind === 'companion' ? { ...e.data, relatedFishId: context.fish[e.related!] } : e.data
+    const data = withPeople(e.kind === 'companion' ? { ...e.data, relatedFishId: context.fish[e.related!] } : e.data)
     return {
       id: e.id, fishId: context.fish[e.fish]!, pondId: context.ponds[pondAt(e.fish, e.at)], kind: e.kind, occurredAt: e.at, authorId: person(e.by), data,
       relatedFishId: e.related ? context.fish[e.related]! : null,

@@ -7,6 +7,7 @@ import { eq, sql } from 'drizzle-orm'
 import type { DataFile } from '#shared/utils/archive-schema'
 import { archiveRecords, type OpenedArchive, type RecordOf } from '../workers/archive-read'
 import { entryStream } from '../workers/zip-reader'
+import { upgradeLegacyEntries } from '../db/upgrade-entries'
 
 const BATCH = 500
 
@@ -126,6 +127,8 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
           }
         }
       })
+      // An archive made before procedure codes (and the other later forms) reads like a live write now.
+      await upgradeLegacyEntries(tx, sql`e.pond_id = ${newPondId}`)
       await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'off', true)`)
       await tx.execute(sql`select fintrail_refresh_measurement_summary(id) from fish where pond_id = ${newPondId}`)
       return newPondId

@@ -3,11 +3,12 @@ import { and, eq, ne, sql } from 'drizzle-orm'
 import type { z } from 'zod'
 import type { FieldErrors, PondRole } from '#shared/types'
 import type { TimelineEntryView } from '#shared/types/timeline'
-import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, isEnucleation, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
+import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
 import { amendDecision, ENTRY_RULES, writeDecision } from '#shared/utils/timeline-rules'
-import { analyteFlag, enucleationConflict, eyeState, isProlongedRecovery, measurementDerived, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
+import { analyteFlag, enucleationConflict, eyeState, isEnucleation, isProlongedRecovery, measurementDerived, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
+import { treatmentSchedule, type GivenDose } from '#shared/utils/treatment-schedule'
 import { fieldErrorsFrom } from '#shared/utils/field-errors'
-import type { TimelineRow } from '../db/queries/timeline'
+import { dosesOf, type TimelineRow } from '../db/queries/timeline'
 import type { Tx } from './db'
 
 type EntryRow = typeof schema.timelineEntries.$inferSelect
@@ -25,8 +26,8 @@ export function refuseWrite(role: PondRole, kind: EntryKind, data: Record<string
   const decision = writeDecision(role, kind, data)
   if (decision.allowed) return
   throw createError({
-    statusCode: 403,
-    statusMessage: 'Not allowed',
+    statusCode: decision.status ?? 403,
+    statusMessage: decision.status === 400 ? 'Invalid input' : 'Not allowed',
     message: decision.message,
     data: { fieldErrors: decision.field ? { [decision.field]: [decision.message] } : {} },
   })
@@ -99,7 +100,7 @@ async function eyeStateOf(tx: Tx, fishId: string, exceptEntryId?: string) {
       exceptEntryId ? ne(schema.timelineEntries.id, exceptEntryId) : undefined,
     ))
   const removals: EyeRemoval[] = rows
-    .filter(r => isEnucleation(String(r.data.name ?? '')))
+    .filter(r => isEnucleation(r.data))
     .map(r => ({ entryId: r.id, on: r.occurredAt.toISOString().slice(0, 10), side: r.data.side as EyeRemoval['side'] }))
   return eyeState(removals)
 }
@@ -109,7 +110,7 @@ async function eyeStateOf(tx: Tx, fishId: string, exceptEntryId?: string) {
  * pond, a linked anaesthesia record and a photo belong to this fish, a fish dies once.
  */
 export async function checkEntryReferences(tx: Tx, fish: FishRow, kind: EntryKind, data: Record<string, unknown>, exceptEntryId?: string) {
-  if (kind === 'procedure' && isEnucleation(String(data.name))) {
+  if (kind === 'procedure' && isEnucleation(data)) {
     const conflict = enucleationConflict(await eyeStateOf(tx, fish.id, exceptEntryId), data.side as EyeRemoval['side'])
     if (conflict) throw badEntry({ 'data.side': [conflict] }, conflict)
   }
@@ -139,6 +140,26 @@ export async function checkEntryReferences(tx: Tx, fish: FishRow, kind: EntryKin
     ))
     if (earlier) throw badEntry({ _: [`A death is already recorded on ${earlier.at.toISOString().slice(0, 10)}`] })
   }
+}
+
+/** A vet of this pond (read-only members included: an earlier instruction stays traceable), or null. */
+async function pondVet(tx: Tx, pondId: string, userId: string) {
+  const [vet] = await tx.select({ id: schema.users.id, name: schema.users.name }).from(schema.memberships)
+    .innerJoin(schema.users, eq(schema.users.id, schema.memberships.userId))
+    .where(and(eq(schema.memberships.pondId, pondId), eq(schema.memberships.userId, userId), eq(schema.memberships.role, 'vet')))
+  return vet ?? null
+}
+
+/**
+ * People named by id must be vets of the fish's pond; their names are written beside the id so the
+ * record reads the same in print and in an archive. Answers the data to store.
+ */
+export async function resolvePeople(tx: Tx, fish: FishRow, kind: EntryKind, data: Record<string, unknown>): Promise<Record<string, unknown>> {
+  const field = kind === 'procedure' ? 'performedById' : kind === 'treatment' ? 'instructedById' : null
+  if (!field || typeof data[field] !== 'string') return data
+  const vet = await pondVet(tx, fish.pondId, data[field])
+  if (!vet) throw badEntry({ [`data.${field}`]: ['Choose one of the pond’s vets'] })
+  return kind === 'procedure' ? { ...data, performedBy: vet.name } : { ...data, instructedBy: vet.name }
 }
 
 /** The columns that mirror parts of the data, so joins and indexes need not read JSON. */
@@ -179,11 +200,17 @@ export async function lockFish(tx: Tx, fishId: string) {
 
 interface ViewContext { species: string, userId: string, role: PondRole }
 
-function derivedFor(kind: TimelineKind, data: Record<string, unknown>, species: string): TimelineEntryView['derived'] {
+function derivedFor(row: TimelineRow, species: string): TimelineEntryView['derived'] {
+  const { kind, data } = row
   if (kind === 'measurement') return measurementDerived(data as Parameters<typeof measurementDerived>[0], species)
   if (kind === 'anaesthesia') return { prolongedRecovery: isProlongedRecovery(data.recoveryMinutes as number | undefined) }
   if (kind === 'lab_result') return { analyteFlags: ((data.analytes ?? []) as { value: number, low?: number, high?: number }[]).map(analyteFlag) }
-  if (kind === 'treatment') return { treatmentLastDay: treatmentLastDay(data as Parameters<typeof treatmentLastDay>[0]) }
+  if (kind === 'treatment') {
+    return {
+      treatmentLastDay: treatmentLastDay(data as Parameters<typeof treatmentLastDay>[0]),
+      schedule: treatmentSchedule(data, new Date(row.occurred_at).toISOString(), (row.doses ?? []).map((d): GivenDose => ({ ...d, givenAt: new Date(d.givenAt).toISOString() }))),
+    }
+  }
   return {}
 }
 
@@ -209,7 +236,7 @@ export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntry
     otherFish: row.other_fish_id ? { id: row.other_fish_id, name: row.other_fish_name ?? '' } : null,
     linkedEntryId: row.linked_entry_id,
     photo: isPhoto ? { id: row.id, caption: String(row.data.caption ?? ''), view: String(row.data.view ?? 'other') } : null,
-    derived: derivedFor(row.kind, row.data, context.species),
+    derived: derivedFor(row, context.species),
     canAmend: row.viewpoint === 'subject' && canAmend(row.kind, row.author_id, row.data, row.entered_in_error, context),
     createdAt: new Date(row.created_at).toISOString(),
   }
@@ -220,7 +247,7 @@ export async function entryView(entryId: string, context: ViewContext): Promise<
   const result = await useDb().execute<TimelineRow>(sql`
     select e.id, e.kind::text as kind, e.occurred_at, e.author_id, author.name as author_name, e.data, e.revision, e.entered_in_error,
       e.error_reason, marker.name as error_by_name, e.error_at, 'subject' as viewpoint, e.related_fish_id as other_fish_id,
-      other.name as other_fish_name, e.linked_entry_id, e.photo_id, e.created_at, '' as cursor_at
+      other.name as other_fish_name, e.linked_entry_id, e.photo_id, e.created_at, '' as cursor_at, ${dosesOf(sql`e`)} as doses
     from timeline_entries e
     left join users author on author.id = e.author_id
     left join users marker on marker.id = e.error_by_id

@@ -7,6 +7,7 @@ import { createInterface } from 'node:readline'
 import type { Entry, ZipFile } from 'yauzl'
 import type { z } from 'zod'
 import { ARCHIVE_LIMITS, checkEntryData, DATA_FILES, manifestSchema, RECORD_SCHEMAS, type ArchiveManifest, type DataFile } from '../../shared/utils/archive-schema'
+import { upgradeEntryData } from '../../shared/utils/timeline-upgrade'
 import { entryStream, openZipFile, streamRefusal, UploadRefusal, type OpenedZip, type UploadProblem } from './zip-reader'
 
 const ALLOWED_NAME = /^(manifest\.json|data\/[a-z-]+\.jsonl|csv\/[a-z-]+\.csv|photos\/[0-9a-f-]{36}\.(jpg|png|webp))$/
@@ -138,17 +139,17 @@ export async function* archiveRecords<F extends DataFile>(archive: OpenedArchive
     if (file === 'timeline') {
       const entryRecord = record as RecordOf<'timeline'>
       const problems: UploadProblem[] = []
-      const revisions = entryRecord.revisions.map((revision, i) => {
-        const checked = checkEntryData(entryRecord.kind, revision.data, roles?.get(revision.author) ?? null)
+      entryRecord.revisions.forEach((revision, i) => {
+        // An entry from before a form changed is checked as the import leaves it: upgraded, as
+        // upgradeLegacyEntries then writes it in a new revision.
+        const data = upgradeEntryData(entryRecord.kind, revision.data) ?? revision.data
+        const checked = checkEntryData(entryRecord.kind, data, roles?.get(revision.author) ?? null)
         if (!checked.ok) problems.push(...checked.problems.map(p => ({ file: name, line, field: `revisions.${i}.${p.field}`, message: p.message })))
-        return checked.ok ? { ...revision, data: checked.data } : revision
       })
       if (problems.length) {
         yield { line, problems: problems.slice(0, 5) }
         continue
       }
-      yield { line, record: { ...entryRecord, revisions, data: revisions.at(-1)!.data } as RecordOf<F> }
-      continue
     }
     yield { line, record }
   }

@@ -1,6 +1,7 @@
 // The shapes the timeline routes answer with.
 import type { TimelineKind } from '../utils/timeline-schemas'
 import type { WeightChangeAlert } from '../utils/condition'
+import type { TreatmentSchedule } from '../utils/treatment-schedule'
 
 export interface PersonRef { id: string, name: string }
 export interface FishRef { id: string, name: string }
@@ -28,6 +29,8 @@ export interface TimelineEntryView {
     prolongedRecovery?: boolean
     analyteFlags?: ('low' | 'high' | null)[]
     treatmentLastDay?: string | null
+    /** A treatment given as a number of doses: each dose, given, missed or still due. */
+    schedule?: TreatmentSchedule | null
   }
   /** Whether the person asking may amend it or mark it entered in error. */
   canAmend: boolean
@@ -55,7 +58,12 @@ export interface StandingFacts {
     summary: string
   }
   problems: { entryId: string, name: string, status: 'active' | 'suspected', onset: string }[]
-  treatments: { entryId: string, drug: string, route: string, dose: number, doseUnit: string, startOn: string, lastDay: string | null }[]
+  /** Courses running today, and those ended in the last 7 days that still have missed doses. */
+  treatments: CurrentTreatment[]
+  /** The fish's latest anaesthesia (not entered in error); `longRecovery` when recovery took over 30 minutes (common practice). */
+  lastAnaesthesia: { at: string, agent: string, concentrationMgL: number, recoveryMinutes: number | null, longRecovery: boolean, entryId: string } | null
+  /** Every anaesthesia the fish has had: how many, how many recovered slowly, and the last one's water and induction. */
+  anaesthesiaHistory: { count: number, longRecoveries: number, lastWaterTemperatureC: number | null, lastInductionMinutes: number | null }
   latestWeight: { weightG: number, at: string, entryId: string } | null
   latestLength: { lengthCm: number, lengthType: string, at: string, entryId: string } | null
   /** Fulton's K from the latest weighing that has both a weight and a length. */
@@ -63,6 +71,19 @@ export interface StandingFacts {
   lastExam: { at: string, entryId: string, by: string, reason: string } | null
   companions: { entryId: string, fish: FishRef, words: string, relation: string }[]
   death: { at: string, cause: string, entryId: string } | null
+}
+
+export interface CurrentTreatment {
+  entryId: string
+  drug: string
+  route: string
+  dose: number
+  doseUnit: string
+  startOn: string
+  lastDay: string | null
+  /** The vet who prescribed it: the instructing vet, or the vet who wrote it; a name typed before vets were chosen from the pond. */
+  prescribedBy: string | null
+  schedule: { doseCount: number, given: number, missed: number, nextDueAt: string | null, missedDoses: { doseNumber: number, dueAt: string }[] } | null
 }
 
 export interface GrowthPoint {

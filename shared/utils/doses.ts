@@ -12,8 +12,21 @@ export const DOSE_CAUTIONS: readonly string[] = Object.freeze([
   'Follow local laws and codes on prescription drugs, chemicals in ponds, and disposal of treated water.',
   'Tricaine methanesulfonate (MS-222) is acidic in solution: buffer it with sodium bicarbonate before fish go in.',
   'MS-222 powder irritates eyes, skin and airways: handle it with gloves, a mask and goggles.',
-  'Fish that may be eaten need a withdrawal period after treatment (in the US, 21 days after MS-222).',
+  'Check whether local rules treat the fish as food-producing (koi and goldfish can count as food fish in some places); if they do, a withdrawal period applies after treatment (in the US, 21 days after MS-222).',
   'For euthanasia follow the AVMA Guidelines for the Euthanasia of Animals (2020).',
+])
+
+/**
+ * Shown beside every anaesthesia form, after the first line of DOSE_CAUTIONS. Aeration, recovery in
+ * water from the same source, and an effect that varies with temperature and size are common practice,
+ * as reviewed by Neiffer & Stamper 2009, ILAR Journal 50(4):343-360 (docs/references.md; recalled from memory).
+ */
+export const ANAESTHESIA_CAUTIONS: readonly string[] = Object.freeze([
+  'Aerate the anaesthetic bath throughout, and recover the fish in clean, well-aerated water from the same source (same temperature and chemistry).',
+  'How fast and how deep an anaesthetic acts depends on water temperature and the size of the fish: watch the fish and its gill movements, not the clock.',
+  DOSE_CAUTIONS[3]!,
+  DOSE_CAUTIONS[4]!,
+  DOSE_CAUTIONS[5]!,
 ])
 
 /** Bath: amount (mg) = concentration (mg/L) × water volume (L). */

@@ -17,7 +17,7 @@ const text = (value: unknown) => (typeof value === 'string' ? value.trim() : '')
 export function pondEventLabel(kind: string, data: Record<string, unknown>): string {
   switch (kind) {
     case 'treatment': return text(data.drug) || 'Treatment'
-    case 'procedure': return text(data.name) || 'Procedure'
+    case 'procedure': return text(data.name) || text(data.code).replaceAll('_', ' ') || 'Procedure'
     case 'death': return text(data.cause) ? `Died: ${text(data.cause)}` : 'Died'
     case 'observation': {
       const signs = Array.isArray(data.signs) ? data.signs.filter(s => typeof s === 'string').map(s => s.replaceAll('_', ' ')) : []

@@ -35,6 +35,11 @@ export function isProlongedRecovery(recoveryMinutes: number | undefined): boolea
 
 // ---- eyes -------------------------------------------------------------------------------------
 
+/** An eye removal is a procedure coded 'enucleation'; what the vet wrote in words never decides it. */
+export function isEnucleation(data: { code?: unknown }): boolean {
+  return data.code === 'enucleation'
+}
+
 export interface EyeRemoval { entryId: string, on: string, side: BodySide }
 export interface EyeState {
   left: { on: string, entryId: string } | null
@@ -85,29 +90,46 @@ function addDays(day: string, days: number): string {
   return date.toISOString().slice(0, 10)
 }
 
-/** The last day of a treatment, or null when it runs until stopped. A 5-day course from the 1st ends on the 5th. */
-export function treatmentLastDay(data: { startOn: string, durationDays?: number, endOn?: string }): string | null {
+type CourseDays = { startOn: string, durationDays?: number, endOn?: string, doseCount?: number, intervalHours?: number }
+
+/**
+ * The last day of a treatment, or null when it runs until stopped. A 5-day course from the 1st ends
+ * on the 5th; a course given as doses ends on the day its last dose falls (counted from `startOn`).
+ */
+export function treatmentLastDay(data: CourseDays): string | null {
   if (data.endOn) return data.endOn
   if (data.durationDays !== undefined) return addDays(data.startOn, data.durationDays - 1)
+  if (data.doseCount !== undefined) return addDays(data.startOn, Math.floor(((data.doseCount - 1) * (data.intervalHours ?? 0)) / 24))
   return null
 }
 
-export function isCurrentTreatment(data: { startOn: string, durationDays?: number, endOn?: string }, today: string): boolean {
+export function isCurrentTreatment(data: CourseDays, today: string): boolean {
   const last = treatmentLastDay(data)
   return data.startOn <= today && (last === null || today <= last)
 }
 
 // ---- companions -------------------------------------------------------------------------------
 
-const RELATION_WORDS: Record<Exclude<CompanionRelation, 'other'>, { forward: string, reverse: string }> = {
-  guides: { forward: 'guides', reverse: 'is guided by' },
-  always_together: { forward: 'is always with', reverse: 'is always with' },
-  aggressive_toward: { forward: 'is aggressive toward', reverse: 'is bullied by' },
+export const RELATION_WORDS: Record<Exclude<CompanionRelation, 'other'>, { forward: string, reverse: string }> = {
+  leads: { forward: 'leads', reverse: 'follows' },
+  stays_close: { forward: 'keeps close to', reverse: 'keeps close to' },
+  chases: { forward: 'chases', reverse: 'is chased by' },
   avoids: { forward: 'avoids', reverse: 'is avoided by' },
+  spawns_with: { forward: 'spawns with', reverse: 'spawns with' },
+  parent_of: { forward: 'is a parent of', reverse: 'is an offspring of' },
 }
 
-/** How the relation reads from one fish's side: "Clementine guides Pilot" is "Pilot is guided by Clementine". */
-export function relationWords(relation: CompanionRelation, relationText: string | undefined, from: 'subject' | 'related'): string {
+// Relations stored before the list was made general; read, never written.
+const EARLIER_RELATION_WORDS: Record<string, { forward: string, reverse: string }> = {
+  guides: { forward: 'leads', reverse: 'follows' },
+  always_together: { forward: 'keeps close to', reverse: 'keeps close to' },
+  aggressive_toward: { forward: 'chases', reverse: 'is chased by' },
+}
+
+/** How the relation reads from one fish's side: "Clementine leads Pilot" is "Pilot follows Clementine". */
+export function relationWords(relation: CompanionRelation | string, relationText: string | undefined, from: 'subject' | 'related'): string {
   if (relation === 'other') return from === 'subject' ? (relationText ?? 'is linked with') : `is linked with (“${relationText ?? ''}”)`
-  return RELATION_WORDS[relation][from === 'subject' ? 'forward' : 'reverse']
+  const words = RELATION_WORDS[relation as Exclude<CompanionRelation, 'other'>] ?? EARLIER_RELATION_WORDS[relation]
+  if (!words) return 'is linked with'
+  return words[from === 'subject' ? 'forward' : 'reverse']
 }

@@ -13,6 +13,8 @@ interface Limited {
   message: string
   /** How the add button reads for these roles. */
   offerLabel: string
+  /** 400 when the missing content is a field the form asks these roles for; 403 (the default) when it is beyond their role. */
+  status?: 400 | 403
 }
 
 export interface EntryRule {
@@ -26,6 +28,8 @@ export interface EntryRule {
 }
 
 const EVERYONE: readonly PondRole[] = ['owner', 'keeper', 'vet']
+
+const onInstruction = (data: Data) => typeof data.instructedById === 'string' && data.instructedById.trim() !== ''
 
 export const ENTRY_RULES: Record<EntryKind, EntryRule> = {
   measurement: { label: 'Weight & length', roles: EVERYONE, clinical: false },
@@ -49,21 +53,23 @@ export const ENTRY_RULES: Record<EntryKind, EntryRule> = {
     label: 'Treatment',
     roles: ['vet'],
     limited: {
-      roles: ['keeper'],
-      allows: data => typeof data.givenOnInstructionOf === 'string' && data.givenOnInstructionOf.trim() !== '',
-      field: 'data.givenOnInstructionOf',
-      message: 'A keeper records a treatment given on a vet’s instruction: name the vet',
+      roles: ['owner', 'keeper'],
+      // Which vet: the server checks that the id is a vet of the fish's pond.
+      allows: onInstruction,
+      field: 'data.instructedById',
+      message: 'A treatment given on a vet’s instruction names the vet: choose one of the pond’s vets',
       offerLabel: 'Treatment given',
+      status: 400,
     },
-    // A treatment the keeper gave on instruction is their note of what they did; the prescription is the vet's.
-    clinical: data => !(typeof data.givenOnInstructionOf === 'string' && data.givenOnInstructionOf.trim() !== ''),
+    // A treatment given on instruction is the giver's note of what they did; the prescription is the vet's.
+    clinical: data => !onInstruction(data),
   },
   lab_result: { label: 'Lab result', roles: ['vet'], clinical: true },
   companion: { label: 'Companion', roles: EVERYONE, clinical: false },
   death: { label: 'Death', roles: ['owner', 'vet'], clinical: false },
 }
 
-export type WriteDecision = { allowed: true } | { allowed: false, message: string, field?: string }
+export type WriteDecision = { allowed: true } | { allowed: false, message: string, field?: string, status?: 400 | 403 }
 
 function rolesText(roles: readonly PondRole[]) {
   return roles.length === 1 ? `a ${roles[0]}` : `an ${roles.slice(0, -1).join(', ')} or ${roles.at(-1)}`
@@ -74,7 +80,7 @@ export function writeDecision(role: PondRole, kind: EntryKind, data: Data): Writ
   const rule = ENTRY_RULES[kind]
   if (rule.roles.includes(role)) return { allowed: true }
   if (rule.limited?.roles.includes(role)) {
-    return rule.limited.allows(data) ? { allowed: true } : { allowed: false, message: rule.limited.message, field: rule.limited.field }
+    return rule.limited.allows(data) ? { allowed: true } : { allowed: false, message: rule.limited.message, field: rule.limited.field, status: rule.limited.status }
   }
   const who = [...rule.roles, ...(rule.limited?.roles ?? [])]
   return { allowed: false, message: `${rule.label} entries are written by ${rolesText(who)} of the pond` }
@@ -117,4 +123,14 @@ export function amendDecision(
       ? 'Only the vet who wrote this clinical entry can amend it'
       : 'Only its author or a pond owner can amend this entry',
   }
+}
+
+/**
+ * Who may tick off a dose of a treatment course as given: whoever of the pond gives it, usually the
+ * keeper. Read-only members are refused by the access check like every other write.
+ */
+export const DOSE_RECORDERS: readonly PondRole[] = EVERYONE
+
+export function doseDecision(role: PondRole): WriteDecision {
+  return DOSE_RECORDERS.includes(role) ? { allowed: true } : { allowed: false, message: `Doses are recorded by ${rolesText(DOSE_RECORDERS)} of the pond` }
 }

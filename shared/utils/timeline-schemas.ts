@@ -99,30 +99,48 @@ export const problemData = z.strictObject({
 
 // ---- procedure and anaesthesia ----------------------------------------------------------------
 
-export const COMMON_PROCEDURES = ['enucleation', 'mass removal', 'biopsy', 'microchip implant', 'fin trim', 'wound debridement', 'wen trim', 'injection site check'] as const
+/**
+ * Our own fixed list of procedures. Standing facts come from the code (an eye is gone because the
+ * code is 'enucleation'), never from the wording of `name`, which is free text for the record.
+ */
+export const PROCEDURE_CODES = [
+  'enucleation', 'mass_removal', 'biopsy', 'fin_trim', 'wound_care', 'microchip_implant', 'wen_trim', 'gill_clip', 'skin_scrape', 'other',
+] as const
+export type ProcedureCode = typeof PROCEDURE_CODES[number]
 export const BODY_SIDES = ['left', 'right', 'both', 'not_applicable'] as const
 export type BodySide = typeof BODY_SIDES[number]
 
-// Shared with the SQL that finds eye removals, so the record and the profile header agree.
-export const ENUCLEATION_PATTERN = 'enucleat|eye removal|eye removed'
-export function isEnucleation(procedureName: string): boolean {
-  return new RegExp(ENUCLEATION_PATTERN, 'i').test(procedureName)
-}
+/** Codes whose side must be named (an eye removal always says which eye). */
+export const SIDED_PROCEDURE_CODES: readonly ProcedureCode[] = ['enucleation']
+
+const personId = (message: string) => z.uuid(message)
 
 export const procedureData = z.strictObject({
-  name: requiredText(160, 'Name the procedure'),
+  code: z.enum(PROCEDURE_CODES, 'Choose the procedure from the list (or “other”)'),
+  /** Free text: what was done in the vet's own words. Required for “other”. */
+  name: limitedText(160).default(''),
   bodySite: limitedText(160).default(''),
   side: z.enum(BODY_SIDES, 'Choose left, right, both or not applicable'),
-  surgeon: requiredText(120, 'Who performed it?'),
+  /** Who performed it, as written on the record. Filled from `performedById` when a vet of the pond was chosen. */
+  performedBy: limitedText(120).default(''),
+  /** A vet of the fish's pond; the server checks it and writes their name into `performedBy`. */
+  performedById: personId('Choose one of the pond’s vets').optional(),
   notes: limitedText(4000).default(''),
   outcome: limitedText(2000).default(''),
   recheckOn: calendarDay.optional(),
   anaesthesiaEntryId: z.uuid('Not an anaesthesia record of this fish').optional(),
 }).superRefine((d, ctx) => {
-  if (isEnucleation(d.name) && d.side === 'not_applicable') ctx.addIssue({ code: 'custom', path: ['side'], message: 'Say which eye: left, right or both' })
+  if (d.code === 'other' && d.name === '') ctx.addIssue({ code: 'custom', path: ['name'], message: 'Describe the procedure' })
+  if (SIDED_PROCEDURE_CODES.includes(d.code) && d.side === 'not_applicable') ctx.addIssue({ code: 'custom', path: ['side'], message: 'Say which eye: left, right or both' })
+  if (d.performedBy === '' && !d.performedById) ctx.addIssue({ code: 'custom', path: ['performedBy'], message: 'Who performed it? Choose a vet of the pond or write the name' })
 })
 
 export const COMMON_ANAESTHETICS = ['MS-222 (tricaine methanesulfonate)', 'Eugenol (clove oil)', 'Isoeugenol', 'Benzocaine'] as const
+
+/** MS-222 is the one agent here that is acidic in solution and needs a buffer. */
+export function isTricaine(agent: string): boolean {
+  return /ms-?222|tricaine/i.test(agent)
+}
 
 export const anaesthesiaData = z.strictObject({
   agent: requiredText(120, 'Name the agent'),
@@ -133,31 +151,55 @@ export const anaesthesiaData = z.strictObject({
   recoveryMinutes: minutes('recovery time', 720).optional(),
   monitoring: limitedText(4000).default(''),
   entered: enteredAs,
-})
+}).refine(d => d.buffer === '' || isTricaine(d.agent), { message: 'A buffer is recorded only for MS-222', path: ['buffer'] })
 
 // ---- treatment --------------------------------------------------------------------------------
 
-export const TREATMENT_ROUTES = ['bath', 'dip', 'injection', 'in_feed', 'topical'] as const
+/**
+ * How the drug reaches the fish. A bath is either a timed bath in a separate (hospital) tank or the
+ * whole pond treated (prolonged immersion). Stored entries from before the split say 'bath'.
+ */
+export const TREATMENT_ROUTES = ['dip', 'tank_bath', 'pond_immersion', 'injection', 'in_feed', 'topical'] as const
 export type TreatmentRoute = typeof TREATMENT_ROUTES[number]
-export const DOSE_UNITS = ['mg/L', 'g/L', 'mL/L', '%', 'mg/kg', 'mL/kg', 'mg/kg of feed', 'g/kg of feed', 'dose'] as const
+/** Routes where the fish is in the solution for a set time, so the time is part of the dose. */
+export const TIMED_ROUTES: readonly TreatmentRoute[] = ['dip', 'tank_bath']
+export const DOSE_UNITS = ['mg/L', 'g/L', 'mL/L', '%', 'mg/kg', 'mL/kg', 'mg/kg of feed', 'g/kg of feed', 'per fish'] as const
+export const AMOUNT_UNITS = ['mg', 'g', 'kg', 'mL', 'L'] as const
 
 export const treatmentData = z.strictObject({
   drug: requiredText(160, 'Name the drug or product'),
-  route: z.enum(TREATMENT_ROUTES, 'Choose bath, dip, injection, in feed or topical'),
+  route: z.enum(TREATMENT_ROUTES, 'Choose dip, hospital-tank bath, whole pond, injection, in feed or topical'),
   injectionSite: limitedText(120).optional(),
   dose: amount('dose', 100_000, 'units'),
   doseUnit: z.enum(DOSE_UNITS, 'Choose the dose unit'),
   startOn: calendarDay,
   durationDays: z.number('Enter the number of days').int('Whole days').min(1, 'At least 1 day').max(365, 'At most 365 days').optional(),
   endOn: calendarDay.optional(),
+  // The course as a schedule: `doseCount` doses, `intervalHours` apart, the first at `firstDoseAt`
+  // (or, when not given, at the entry's own date and time).
+  intervalHours: z.number('Enter the hours between doses').positive('More than 0 hours').max(8760, 'At most a year between doses').optional(),
+  doseCount: z.number('Enter the number of doses').int('A whole number of doses').min(1, 'At least 1 dose').max(1000, 'At most 1000 doses').optional(),
+  firstDoseAt: z.iso.datetime({ offset: true, error: 'Give the date and time of the first dose' }).optional(),
+  /** How long the fish stays in a dip or bath. */
+  exposureMinutes: z.number('Enter the exposure in minutes').positive('More than 0 minutes').max(10_080, 'At most 7 days (10,080 minutes)').optional(),
+  volumeTreatedL: amount('volume treated', 10_000_000, 'L').optional(),
+  amountAdded: amount('amount added', 1_000_000, 'units').optional(),
+  amountAddedUnit: z.enum(AMOUNT_UNITS, 'Choose mg, g, kg, mL or L').optional(),
   givenBy: limitedText(120).default(''),
-  // Set when a keeper records what they gave on a vet's instruction; names that vet.
-  givenOnInstructionOf: limitedText(120).optional(),
+  /** The vet of the pond who prescribed it, when someone else records it (a keeper or owner on instruction). */
+  instructedById: personId('Choose one of the pond’s vets').optional(),
+  /** The instructing vet's name, written by the server from `instructedById`. */
+  instructedBy: limitedText(120).optional(),
   notes: limitedText(4000).default(''),
 }).superRefine((d, ctx) => {
-  if (d.route === 'injection' && !d.injectionSite) ctx.addIssue({ code: 'custom', path: ['injectionSite'], message: 'Give the injection site' })
-  if (d.durationDays !== undefined && d.endOn) ctx.addIssue({ code: 'custom', path: ['endOn'], message: 'Give a duration or an end date, not both' })
-  if (d.endOn && d.endOn < d.startOn) ctx.addIssue({ code: 'custom', path: ['endOn'], message: 'Cannot end before it starts' })
+  const issue = (path: string, message: string) => ctx.addIssue({ code: 'custom', path: [path], message })
+  if (d.route === 'injection' && !d.injectionSite) issue('injectionSite', 'Give the injection site')
+  if (TIMED_ROUTES.includes(d.route) && d.exposureMinutes === undefined) issue('exposureMinutes', 'Give how many minutes the fish stays in the solution')
+  if (d.durationDays !== undefined && d.endOn) issue('endOn', 'Give a duration or an end date, not both')
+  if (d.endOn && d.endOn < d.startOn) issue('endOn', 'Cannot end before it starts')
+  if (d.doseCount !== undefined && d.doseCount > 1 && d.intervalHours === undefined) issue('intervalHours', 'Give the hours between doses')
+  if (d.intervalHours !== undefined && d.doseCount === undefined) issue('doseCount', 'Give the number of doses')
+  if ((d.amountAdded === undefined) !== (d.amountAddedUnit === undefined)) issue(d.amountAdded === undefined ? 'amountAdded' : 'amountAddedUnit', 'Give the amount added with its unit')
 })
 
 // ---- lab result -------------------------------------------------------------------------------
@@ -195,7 +237,8 @@ export const labResultData = z.strictObject({
 
 // ---- companion and death ----------------------------------------------------------------------
 
-export const COMPANION_RELATIONS = ['guides', 'always_together', 'aggressive_toward', 'avoids', 'other'] as const
+/** How two fish relate, in plain words of our own; read from the side the note was written on. */
+export const COMPANION_RELATIONS = ['leads', 'stays_close', 'chases', 'avoids', 'spawns_with', 'parent_of', 'other'] as const
 export type CompanionRelation = typeof COMPANION_RELATIONS[number]
 
 export const companionData = z.strictObject({
@@ -291,3 +334,10 @@ export const timelineQuerySchema = z.strictObject({
 })
 
 export const entryIdParams = z.object({ entryId: z.uuid('Not a valid id') })
+
+/** A dose of a treatment course checked off as given. `givenAt` defaults to now. */
+export const doseGivenSchema = z.strictObject({
+  doseNumber: z.number('Say which dose (1 for the first)').int('A whole number').min(1, 'Dose 1 is the first'),
+  givenAt: occurredAtSchema.optional(),
+  note: limitedText(500).default(''),
+})

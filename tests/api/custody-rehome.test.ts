@@ -10,7 +10,7 @@ const day = (n: number) => new Date(Date.now() - n * 86_400_000).toISOString().s
 const today = () => new Date().toISOString().slice(0, 10)
 
 async function linkCompanions(client: ApiClient, fishId: string, relatedFishId: string) {
-  const response = await client.post(`/api/fish/${fishId}/timeline`, { kind: 'companion', occurredAt: day(30), data: { relatedFishId, relation: 'guides', note: 'Leads the blind one to food' } })
+  const response = await client.post(`/api/fish/${fishId}/timeline`, { kind: 'companion', occurredAt: day(30), data: { relatedFishId, relation: 'leads', note: 'Leads the blind one to food' } })
   expect(response.status, JSON.stringify(response.body)).toBe(201)
 }
 

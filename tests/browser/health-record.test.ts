@@ -27,8 +27,8 @@ describe('printable health record', () => {
     }
     await post({ kind: 'measurement', occurredAt: '2025-04-01', data: { weightG: 2100, lengthCm: 52, lengthType: 'total' } })
     await post({ kind: 'measurement', occurredAt: '2026-04-01', data: { weightG: 2350, lengthCm: 54, lengthType: 'total' } })
-    await post({ kind: 'procedure', occurredAt: '2026-05-02', data: { name: 'enucleation', bodySite: 'eye', side: 'left', surgeon: 'Dr Test Vet', outcome: 'Recovered well' } })
-    await post({ kind: 'procedure', occurredAt: '2026-06-10', data: { name: 'mass removal', bodySite: 'dorsal fin base', side: 'right', surgeon: 'Dr Test Vet', outcome: 'Margins clear' } })
+    await post({ kind: 'procedure', occurredAt: '2026-05-02', data: { code: 'enucleation', name: 'enucleation', bodySite: 'eye', side: 'left', performedBy: 'Dr Test Vet', outcome: 'Recovered well' } })
+    await post({ kind: 'procedure', occurredAt: '2026-06-10', data: { code: 'mass_removal', name: 'mass removal', bodySite: 'dorsal fin base', side: 'right', performedBy: 'Dr Test Vet', outcome: 'Margins clear' } })
 
     const page = await browser.newPage()
     await signIn(page, world.owner.email, world.owner.password)

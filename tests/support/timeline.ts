@@ -9,8 +9,8 @@ export function daysAgo(days: number) {
   return new Date(Date.now() - days * DAY_MS).toISOString().slice(0, 10)
 }
 
-/** A valid entry of every kind; `relatedFishId` is another fish of the same pond. */
-export function sampleEntries(relatedFishId: string) {
+/** A valid entry of every kind; `relatedFishId` is another fish of the same pond, `vetId` a vet of that pond. */
+export function sampleEntries(relatedFishId: string, vetId = '00000000-0000-4000-8000-000000000000') {
   return {
     measurement: { kind: 'measurement', occurredAt: daysAgo(10), data: { weightG: 1250, lengthCm: 42, lengthType: 'total' } },
     observation: { kind: 'observation', occurredAt: daysAgo(9), data: { signs: ['flashing', 'clamped_fins'], text: 'Flashing against the wall after feeding' } },
@@ -24,21 +24,21 @@ export function sampleEntries(relatedFishId: string) {
     },
     problemActive: { kind: 'problem', occurredAt: daysAgo(8), data: { name: 'Gill parasites', onset: daysAgo(14), status: 'active' } },
     problemSuspected: { kind: 'problem', occurredAt: daysAgo(8), data: { name: 'Gill parasites?', onset: daysAgo(14), status: 'suspected' } },
-    procedure: { kind: 'procedure', occurredAt: daysAgo(7), data: { name: 'fin trim', bodySite: 'caudal fin', side: 'not_applicable', surgeon: 'Dr Vet' } },
+    procedure: { kind: 'procedure', occurredAt: daysAgo(7), data: { code: 'fin_trim', bodySite: 'caudal fin', side: 'not_applicable', performedBy: 'Dr Vet' } },
     anaesthesia: {
       kind: 'anaesthesia', occurredAt: daysAgo(7),
       data: { agent: 'MS-222 (tricaine methanesulfonate)', concentrationMgL: 100, buffer: 'sodium bicarbonate', waterTemperatureC: 18, inductionMinutes: 4, recoveryMinutes: 12 },
     },
-    treatmentPrescribed: { kind: 'treatment', occurredAt: daysAgo(6), data: { drug: 'Salt (sodium chloride)', route: 'bath', dose: 3, doseUnit: 'g/L', startOn: daysAgo(6), durationDays: 14 } },
+    treatmentPrescribed: { kind: 'treatment', occurredAt: daysAgo(6), data: { drug: 'Salt (sodium chloride)', route: 'pond_immersion', dose: 3, doseUnit: 'g/L', startOn: daysAgo(6), durationDays: 14 } },
     treatmentGiven: {
       kind: 'treatment', occurredAt: daysAgo(6),
-      data: { drug: 'Salt (sodium chloride)', route: 'bath', dose: 3, doseUnit: 'g/L', startOn: daysAgo(6), durationDays: 14, givenBy: 'Keeper', givenOnInstructionOf: 'Dr Vet' },
+      data: { drug: 'Salt (sodium chloride)', route: 'pond_immersion', dose: 3, doseUnit: 'g/L', startOn: daysAgo(6), durationDays: 14, givenBy: 'Keeper', instructedById: vetId },
     },
     labResult: {
       kind: 'lab_result', occurredAt: daysAgo(5),
       data: { panel: 'haematology', analytes: [{ name: 'Packed cell volume', value: 22, unit: '%', low: 24, high: 43 }], intervalSource: 'Laboratory report' },
     },
-    companion: { kind: 'companion', occurredAt: daysAgo(4), data: { relatedFishId, relation: 'guides' } },
+    companion: { kind: 'companion', occurredAt: daysAgo(4), data: { relatedFishId, relation: 'leads' } },
     death: { kind: 'death', occurredAt: daysAgo(1), data: { cause: 'Old age' } },
   } as const
 }

@@ -4,6 +4,7 @@ import {
   doseAmountMg,
   dilutionPlan,
   dilutionStockVolume,
+  ANAESTHESIA_CAUTIONS,
   DOSE_CAUTIONS,
   injectionVolumeMl,
   saltForPondKg,
@@ -119,8 +120,14 @@ describe('DOSE_CAUTIONS', () => {
     { label: 'MS-222 buffered with sodium bicarbonate', pattern: /MS-222.*sodium bicarbonate/i },
     { label: 'MS-222 handling (gloves, mask, goggles)', pattern: /MS-222.*gloves.*mask.*goggles/i },
     { label: 'food-fish withdrawal 21 days', pattern: /withdrawal.*21 days/i },
+    { label: 'check whether local rules treat the fish as food-producing', pattern: /local rules treat the fish as food-producing/i },
   ])('includes: $label', ({ pattern }) => {
     expect(DOSE_CAUTIONS.some(text => pattern.test(text))).toBe(true)
+  })
+
+  it('names aeration, recovery water from the same source, and temperature and size for anaesthesia', () => {
+    expect(ANAESTHESIA_CAUTIONS.join(' ')).toMatch(/aerat.*clean, well-aerated water from the same source/i)
+    expect(ANAESTHESIA_CAUTIONS.join(' ')).toMatch(/temperature and the size of the fish/i)
   })
 
   it('cannot be changed by a caller', () => {

@@ -1,9 +1,10 @@
 import { describe, expect, it } from 'vitest'
 import {
-  analyteFlag, enucleationConflict, eyeState, isCurrentTreatment, isProlongedRecovery, measurementDerived, relationWords, treatmentLastDay,
+  analyteFlag, enucleationConflict, eyeState, isCurrentTreatment, isEnucleation, isProlongedRecovery, measurementDerived, relationWords, treatmentLastDay,
 } from '../../shared/utils/timeline-derived'
-import { kindsOffered, amendDecision, writeDecision } from '../../shared/utils/timeline-rules'
-import { entryCreateSchema, isEnucleation } from '../../shared/utils/timeline-schemas'
+import { kindsOffered, amendDecision, doseDecision, writeDecision } from '../../shared/utils/timeline-rules'
+import { entryCreateSchema, treatmentData } from '../../shared/utils/timeline-schemas'
+import { upgradeEntryData } from '../../shared/utils/timeline-upgrade'
 
 describe('measurementDerived', () => {
   it.each([
@@ -36,11 +37,21 @@ describe('eyes', () => {
     expect(enucleationConflict(eyeState([left, right]), 'both')).toMatch(/left eye .* and the right eye was already removed on 2026-05-02/)
   })
 
-  it.each(['enucleation', 'Enucleation, left', 'eye removal', 'Eye removed with mass'])('%s is an eye removal', (name) => {
-    expect(isEnucleation(name)).toBe(true)
+  it('reads an eye removal from the procedure code, never from its wording', () => {
+    expect(isEnucleation({ code: 'enucleation', name: 'anything at all' })).toBe(true)
+    expect(isEnucleation({ code: 'mass_removal', name: 'Removal of the left eye' })).toBe(false)
+    expect(isEnucleation({ name: 'enucleation' })).toBe(false)
   })
-  it.each(['biopsy', 'fin trim', 'microchip implant'])('%s is not', (name) => {
-    expect(isEnucleation(name)).toBe(false)
+
+  it('brings entries of an earlier form to the current one', () => {
+    expect(upgradeEntryData('procedure', { name: 'Enucleation, left', side: 'left', surgeon: 'Dr A' }))
+      .toEqual({ code: 'enucleation', name: 'Enucleation, left', side: 'left', performedBy: 'Dr A' })
+    expect(upgradeEntryData('procedure', { name: 'fin trim', side: 'not_applicable', surgeon: 'Dr A' })).toMatchObject({ code: 'fin_trim' })
+    expect(upgradeEntryData('procedure', { name: 'Scale repair', side: 'left', surgeon: 'Dr A' })).toMatchObject({ code: 'other' })
+    expect(upgradeEntryData('procedure', { code: 'biopsy', name: '', side: 'left', performedBy: 'Dr A' })).toBeNull()
+    expect(upgradeEntryData('treatment', { doseUnit: 'dose' })).toEqual({ doseUnit: 'per fish' })
+    expect(upgradeEntryData('companion', { relation: 'guides' })).toEqual({ relation: 'leads' })
+    expect(upgradeEntryData('companion', { relation: 'avoids' })).toBeNull()
   })
 })
 
@@ -61,17 +72,36 @@ describe('treatments and flags', () => {
     expect([isProlongedRecovery(30), isProlongedRecovery(31), isProlongedRecovery(undefined)]).toEqual([false, true, false])
   })
 
-  it('words a companion from each side', () => {
-    expect(relationWords('guides', undefined, 'subject')).toBe('guides')
-    expect(relationWords('guides', undefined, 'related')).toBe('is guided by')
-    expect(relationWords('always_together', undefined, 'related')).toBe('is always with')
+  it('words a companion from each side, earlier relation names included', () => {
+    expect(relationWords('leads', undefined, 'subject')).toBe('leads')
+    expect(relationWords('leads', undefined, 'related')).toBe('follows')
+    expect(relationWords('chases', undefined, 'related')).toBe('is chased by')
+    expect(relationWords('guides', undefined, 'related')).toBe('follows')
+    expect(relationWords('always_together', undefined, 'related')).toBe('keeps close to')
+  })
+
+  it('ends a course given as doses on the day of its last dose', () => {
+    // 5 doses 48 hours apart from 1 March: the last falls 8 days later, on 9 March.
+    expect(treatmentLastDay({ startOn: '2026-03-01', doseCount: 5, intervalHours: 48 })).toBe('2026-03-09')
+    expect(treatmentLastDay({ startOn: '2026-03-01', doseCount: 1 })).toBe('2026-03-01')
+  })
+
+  it('needs the exposure for a dip or a hospital-tank bath, and the interval for more than one dose', () => {
+    const base = { drug: 'Potassium permanganate', dose: 10, doseUnit: 'mg/L', startOn: '2026-03-01' }
+    const issues = (data: object) => (treatmentData.safeParse(data).error?.issues ?? []).map(i => i.path.join('.'))
+    expect(issues({ ...base, route: 'dip' })).toEqual(['exposureMinutes'])
+    expect(issues({ ...base, route: 'tank_bath' })).toEqual(['exposureMinutes'])
+    expect(issues({ ...base, route: 'pond_immersion' })).toEqual([])
+    expect(issues({ ...base, route: 'dip', exposureMinutes: 30, doseCount: 3 })).toEqual(['intervalHours'])
+    expect(issues({ ...base, route: 'pond_immersion', amountAdded: 120 })).toEqual(['amountAddedUnit'])
+    expect(issues({ ...base, route: 'bath' })).toEqual(['route'])
   })
 })
 
 describe('who may write what', () => {
   it('drives the add buttons from the same table as the server check', () => {
     expect(kindsOffered('keeper').map(o => `${o.kind}${o.limited ? '*' : ''}`)).toEqual(['measurement', 'observation', 'problem*', 'treatment*', 'companion'])
-    expect(kindsOffered('owner').map(o => `${o.kind}${o.limited ? '*' : ''}`)).toEqual(['measurement', 'observation', 'problem*', 'companion', 'death'])
+    expect(kindsOffered('owner').map(o => `${o.kind}${o.limited ? '*' : ''}`)).toEqual(['measurement', 'observation', 'problem*', 'treatment*', 'companion', 'death'])
     expect(kindsOffered('vet')).toHaveLength(10)
     for (const role of ['owner', 'keeper', 'vet'] as const) {
       for (const offer of kindsOffered(role)) {
@@ -80,8 +110,10 @@ describe('who may write what', () => {
     }
     expect(writeDecision('keeper', 'problem', { status: 'suspected' }).allowed).toBe(true)
     expect(writeDecision('keeper', 'problem', { status: 'active' })).toMatchObject({ allowed: false, field: 'data.status' })
-    expect(writeDecision('keeper', 'treatment', { givenOnInstructionOf: '  ' })).toMatchObject({ allowed: false, field: 'data.givenOnInstructionOf' })
+    expect(writeDecision('keeper', 'treatment', { instructedById: '  ' })).toMatchObject({ allowed: false, field: 'data.instructedById', status: 400 })
+    expect(writeDecision('owner', 'treatment', { instructedById: '7d1f4a52-58a4-4f53-8f3e-8d1c2f0e9a11' }).allowed).toBe(true)
     expect(writeDecision('owner', 'treatment', { givenOnInstructionOf: 'Dr Vet' }).allowed).toBe(false)
+    expect(['owner', 'keeper', 'vet'].map(role => doseDecision(role as 'vet').allowed)).toEqual([true, true, true])
     expect(writeDecision('keeper', 'death', {})).toEqual({ allowed: false, message: 'Death entries are written by an owner or vet of the pond' })
   })
 
@@ -90,7 +122,7 @@ describe('who may write what', () => {
     expect(amendDecision(owner, { authorId: 'k', kind: 'measurement', data: {} }).allowed).toBe(true)
     expect(amendDecision(owner, { authorId: 'k', kind: 'problem', data: { status: 'suspected' } }).allowed).toBe(true)
     expect(amendDecision(owner, { authorId: 'v', kind: 'problem', data: { status: 'active' } }).allowed).toBe(false)
-    expect(amendDecision(owner, { authorId: 'k', kind: 'treatment', data: { givenOnInstructionOf: 'Dr Vet' } }).allowed).toBe(true)
+    expect(amendDecision(owner, { authorId: 'k', kind: 'treatment', data: { instructedById: 'v' } }).allowed).toBe(true)
     expect(amendDecision(owner, { authorId: 'v', kind: 'exam', data: {} }).allowed).toBe(false)
     expect(amendDecision({ userId: 'k', role: 'keeper' }, { authorId: 'o', kind: 'observation', data: {} }).allowed).toBe(false)
   })
@@ -106,7 +138,7 @@ describe('entryCreateSchema', () => {
 
   it('keeps a procedure’s anaesthesia record to the procedure kind', () => {
     const anaesthesia = { agent: 'MS-222', concentrationMgL: 100 }
-    expect(entryCreateSchema.safeParse({ kind: 'procedure', occurredAt: '2024-05-01', data: { name: 'biopsy', side: 'left', surgeon: 'A' }, anaesthesia }).success).toBe(true)
+    expect(entryCreateSchema.safeParse({ kind: 'procedure', occurredAt: '2024-05-01', data: { code: 'biopsy', side: 'left', performedBy: 'A' }, anaesthesia }).success).toBe(true)
     expect(entryCreateSchema.safeParse({ kind: 'exam', occurredAt: '2024-05-01', data: { assessment: 'Fine' }, anaesthesia }).success).toBe(false)
   })
 })

@@ -3,7 +3,7 @@ import { users, sessions } from './users'
 import { ponds, memberships, invitations } from './ponds'
 import { fish, fishEdits } from './fish'
 import { photos } from './photos'
-import { timelineEntries, timelineRevisions } from './timeline'
+import { timelineEntries, timelineRevisions, treatmentDoses } from './timeline'
 
 export const usersRelations = relations(users, ({ many }) => ({ memberships: many(memberships), sessions: many(sessions) }))
 export const sessionsRelations = relations(sessions, ({ one }) => ({ user: one(users, { fields: [sessions.userId], references: [users.id] }) }))
@@ -31,6 +31,11 @@ export const timelineEntriesRelations = relations(timelineEntries, ({ one, many 
   fish: one(fish, { fields: [timelineEntries.fishId], references: [fish.id], relationName: 'fishTimeline' }),
   author: one(users, { fields: [timelineEntries.authorId], references: [users.id] }),
   revisions: many(timelineRevisions),
+  doses: many(treatmentDoses),
+}))
+export const treatmentDosesRelations = relations(treatmentDoses, ({ one }) => ({
+  entry: one(timelineEntries, { fields: [treatmentDoses.entryId], references: [timelineEntries.id] }),
+  givenBy: one(users, { fields: [treatmentDoses.givenById], references: [users.id] }),
 }))
 export const timelineRevisionsRelations = relations(timelineRevisions, ({ one }) => ({
   entry: one(timelineEntries, { fields: [timelineRevisions.entryId], references: [timelineEntries.id] }),

@@ -56,3 +56,18 @@ export const timelineRevisions = pgTable('timeline_revisions', {
   uniqueIndex('timeline_revisions_entry_revision_unique').on(t.entryId, t.revision),
   index('timeline_revisions_author_idx').on(t.authorId),
 ])
+
+// Each dose of a treatment course checked off as given: who gave it and when. A dose is recorded
+// once (the unique index), so two phones ticking the same dose cannot count it twice.
+export const treatmentDoses = pgTable('treatment_doses', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  entryId: uuid('entry_id').notNull().references(() => timelineEntries.id),
+  doseNumber: integer('dose_number').notNull(),
+  givenAt: timestamp('given_at', { withTimezone: true }).notNull(),
+  givenById: uuid('given_by_id').notNull().references(() => users.id),
+  note: text('note').notNull().default(''),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+}, t => [
+  uniqueIndex('treatment_doses_entry_dose_unique').on(t.entryId, t.doseNumber),
+  index('treatment_doses_given_by_idx').on(t.givenById),
+])

@@ -1,26 +1,74 @@
 import { fishIdParams } from '#shared/utils/fish-schemas'
 import { fultonK } from '#shared/utils/condition'
-import type { StandingFacts } from '#shared/types/timeline'
-import { eyeState, isCurrentTreatment, relationWords, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
+import type { CurrentTreatment, StandingFacts } from '#shared/types/timeline'
+import { eyeState, isCurrentTreatment, isProlongedRecovery, relationWords, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
+import { treatmentSchedule } from '#shared/utils/treatment-schedule'
 import type { CompanionRelation } from '#shared/utils/timeline-schemas'
 import { standingFactsSql, type FactsRow } from '../../../db/queries/timeline'
 
-type TreatmentData = { drug: string, route: string, dose: number, doseUnit: string, startOn: string, durationDays?: number, endOn?: string }
+type TreatmentData = {
+  drug: string
+  route: string
+  dose: number
+  doseUnit: string
+  startOn: string
+  durationDays?: number
+  endOn?: string
+  doseCount?: number
+  intervalHours?: number
+  firstDoseAt?: string
+  instructedBy?: string
+  /** Typed text, before vets were chosen from the pond. */
+  givenOnInstructionOf?: string
+}
+// A course that ended lately stays in view while a dose of it was missed.
+const MISSED_DOSES_SHOWN_FOR_DAYS = 7
+
+const iso = (at: string) => new Date(at).toISOString()
+const dayBefore = (day: string, days: number) => new Date(Date.parse(`${day}T00:00:00Z`) - days * 86_400_000).toISOString().slice(0, 10)
+
+function currentTreatments(rows: FactsRow['treatments'], today: string, now: Date): CurrentTreatment[] {
+  return rows.flatMap((row) => {
+    const data = row.data as TreatmentData
+    const schedule = treatmentSchedule(data, iso(row.at), row.doses.map(d => ({ ...d, givenAt: iso(d.givenAt) })), now)
+    const lastDay = treatmentLastDay(data)
+    const recentlyMissed = Boolean(schedule?.missed) && lastDay !== null && lastDay >= dayBefore(today, MISSED_DOSES_SHOWN_FOR_DAYS)
+    if (!isCurrentTreatment(data, today) && !recentlyMissed) return []
+    return [{
+      entryId: row.entryId, drug: data.drug, route: data.route, dose: data.dose, doseUnit: data.doseUnit, startOn: data.startOn, lastDay,
+      prescribedBy: data.instructedBy ?? data.givenOnInstructionOf ?? (row.authorIsVet ? row.authorName : null),
+      schedule: schedule && {
+        doseCount: schedule.doseCount, given: schedule.given, missed: schedule.missed, nextDueAt: schedule.nextDueAt,
+        missedDoses: schedule.slots.filter(s => s.state === 'missed').map(s => ({ doseNumber: s.doseNumber, dueAt: s.dueAt })),
+      },
+    }]
+  })
+}
 
 export default defineEventHandler(async (event): Promise<StandingFacts> => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   await requireFishRole(event, fishId)
-  const today = new Date().toISOString().slice(0, 10)
-  const { rows: [facts] } = await useDb().execute<FactsRow>(standingFactsSql(fishId, today))
+  const now = new Date()
+  const today = now.toISOString().slice(0, 10)
+  const { rows: [facts] } = await useDb().execute<FactsRow>(standingFactsSql(fishId, today, dayBefore(today, MISSED_DOSES_SHOWN_FOR_DAYS)))
   const f = facts!
-  const iso = (at: string) => new Date(at).toISOString()
+  const last = f.last_anaesthesia
   return {
     eyes: eyeState(f.enucleations as EyeRemoval[]),
     problems: f.problems,
-    treatments: f.treatments
-      .map(t => ({ entryId: t.entryId, data: t.data as TreatmentData }))
-      .filter(t => isCurrentTreatment(t.data, today))
-      .map(({ entryId, data }) => ({ entryId, drug: data.drug, route: data.route, dose: data.dose, doseUnit: data.doseUnit, startOn: data.startOn, lastDay: treatmentLastDay(data) })),
+    treatments: currentTreatments(f.treatments, today, now),
+    lastAnaesthesia: last
+      ? {
+          at: iso(last.at), agent: last.agent, concentrationMgL: last.concentrationMgL, recoveryMinutes: last.recoveryMinutes ?? null,
+          longRecovery: isProlongedRecovery(last.recoveryMinutes ?? undefined), entryId: last.entryId,
+        }
+      : null,
+    anaesthesiaHistory: {
+      count: f.anaesthesia_counts.count,
+      longRecoveries: f.anaesthesia_counts.longRecoveries,
+      lastWaterTemperatureC: last?.waterTemperatureC ?? null,
+      lastInductionMinutes: last?.inductionMinutes ?? null,
+    },
     latestWeight: f.latest_weight && { ...f.latest_weight, at: iso(f.latest_weight.at) },
     latestLength: f.latest_length && { ...f.latest_length, at: iso(f.latest_length.at) },
     latestCondition: f.latest_pair && {

@@ -4,7 +4,7 @@ import type { FishGrowth, GrowthMarker } from '#shared/types/timeline'
 import { growthSql, type GrowthRow } from '../../../db/queries/timeline'
 
 function markerLabel(e: GrowthRow['events'][number]) {
-  if (e.kind === 'procedure') return [e.name, e.side && e.side !== 'not_applicable' ? `(${e.side})` : ''].filter(Boolean).join(' ')
+  if (e.kind === 'procedure') return [e.name || e.code?.replaceAll('_', ' '), e.side && e.side !== 'not_applicable' ? `(${e.side})` : ''].filter(Boolean).join(' ')
   if (e.kind === 'treatment') return `${e.drug} (${String(e.route).replace('_', ' ')})`
   return 'Died'
 }

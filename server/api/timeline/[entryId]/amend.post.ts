@@ -6,8 +6,8 @@ export default defineEventHandler(async (event) => {
   const access = await requireEntryAccess(event, entryId)
   const kind = refuseAmend(access)
   const { revision, occurredAt, reason, data: rawData } = await readValidated(event, entryAmendEnvelope)
-  const data = validateEntryData(kind, rawData)
-  refuseWrite(access.role, kind, data)
+  const checked = validateEntryData(kind, rawData)
+  refuseWrite(access.role, kind, checked)
   const { fish, user, role } = access
 
   await useDb().transaction(async (tx) => {
@@ -17,6 +17,7 @@ export default defineEventHandler(async (event) => {
     if (entry!.revision !== revision) {
       throw createError({ statusCode: 409, statusMessage: 'Amended by someone else', message: `This entry is now at revision ${entry!.revision}. Reload it, then amend again.` })
     }
+    const data = await resolvePeople(tx, fish, kind, checked)
     await checkEntryReferences(tx, fish, kind, data, entryId)
     const next = entry!.revision + 1
     const when = occurredAt ? new Date(occurredAt) : entry!.occurredAt

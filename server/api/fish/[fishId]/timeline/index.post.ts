@@ -31,6 +31,7 @@ export default defineEventHandler(async (event) => {
       linked = record.id
       data = { ...data, anaesthesiaEntryId: record.id }
     }
+    data = await resolvePeople(tx, fish, input.kind, data)
     await checkEntryReferences(tx, fish, input.kind, data)
     const entry = await insertEntry(tx, { id: input.id, fish, kind: input.kind, occurredAt, authorId: user.id, data })
     if (input.kind === 'death') await syncDeathStatus(tx, fish, user.id, true)

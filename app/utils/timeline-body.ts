@@ -1,0 +1,20 @@
+// What every per-kind entry body receives. Outside the timeline (the printable record, a revision)
+// only `data` and the fish are known; the rest is there when an entry is shown live.
+import type { FishRef, TimelineEntryView } from '#shared/types/timeline'
+
+export interface EntryBodyContext {
+  species: string
+  fishName: string
+  otherFish?: FishRef | null
+  viewpoint?: 'subject' | 'related'
+  /** The entry's id, when it is shown live (a dose can then be checked off). */
+  entryId?: string
+  derived?: TimelineEntryView['derived']
+  /** Whether the reader may check off doses here (false in print and history). */
+  canRecordDoses?: boolean
+  /** Keys to refresh after checking off a dose. */
+  refreshKeys?: string[]
+}
+
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+export type EntryBodyData = Record<string, any>
