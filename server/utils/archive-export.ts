@@ -34,6 +34,7 @@ async function* people(pondId: string): AsyncGenerator<ArchiveRecord<'people'>> 
       union select r.author_id from timeline_revisions r join timeline_entries e on e.id = r.entry_id join fish f on f.id = e.fish_id where f.pond_id = $1
       union select x.user_id from fish_edits x join fish f on f.id = x.fish_id where f.pond_id = $1
       union select p.uploader_id from photos p join fish f on f.id = p.fish_id where f.pond_id = $1
+      union select d.given_by_id from treatment_doses d join timeline_entries e on e.id = d.entry_id join fish f on f.id = e.fish_id where f.pond_id = $1
     ) order by u.id`, [pondId])
   for (const u of rows) yield { ref: u.id, name: u.name, email: u.email, role: null }
 }
@@ -67,12 +68,14 @@ async function* timelineRecords(pondId: string): AsyncGenerator<ArchiveRecord<'t
       const slice = rows.slice(start, start + BATCH)
       const { rows: revisions } = await usePool().query('select * from timeline_revisions where entry_id = any($1) order by entry_id, revision', [slice.map(r => r.id)])
       const byEntry = groupBy(revisions)
-      for (const e of slice) yield timelineRecord(e, byEntry.get(e.id as string) ?? [])
+      const { rows: doses } = await usePool().query('select * from treatment_doses where entry_id = any($1) order by entry_id, dose_number', [slice.map(r => r.id)])
+      const dosesByEntry = groupBy(doses)
+      for (const e of slice) yield timelineRecord(e, byEntry.get(e.id as string) ?? [], dosesByEntry.get(e.id as string) ?? [])
     }
   }
 }
 
-function timelineRecord(e: Row, revisions: Row[]): ArchiveRecord<'timeline'> {
+function timelineRecord(e: Row, revisions: Row[], doses: Row[]): ArchiveRecord<'timeline'> {
   return {
     id: e.id as string, fishId: e.fish_id as string, kind: e.kind as 'measurement', occurredAt: iso(e.occurred_at)!, author: e.author_id as string,
     relatedFishId: e.related_fish_id as string | null, linkedEntryId: e.linked_entry_id as string | null, photoId: e.photo_id as string | null,
@@ -82,6 +85,9 @@ function timelineRecord(e: Row, revisions: Row[]): ArchiveRecord<'timeline'> {
       revision: r.revision as number, occurredAt: iso(r.occurred_at)!, data: r.data as Record<string, unknown>,
       author: r.author_id as string, reason: r.reason as string | null, createdAt: iso(r.created_at)!,
     })),
+    ...(doses.length
+      ? { doses: doses.map(d => ({ doseNumber: d.dose_number as number, givenAt: iso(d.given_at)!, givenBy: d.given_by_id as string, note: d.note as string, createdAt: iso(d.created_at)! })) }
+      : {}),
   }
 }
 

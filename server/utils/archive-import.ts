@@ -122,6 +122,11 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
           for (const r of e.revisions.slice(1)) {
             await tx.update(schema.timelineEntries).set({ revision: r.revision, data: r.data, occurredAt: new Date(r.occurredAt) }).where(where)
           }
+          if (e.doses?.length) {
+            await tx.insert(schema.treatmentDoses).values(e.doses.map(d => ({
+              entryId: entryIds.get(e.id), doseNumber: d.doseNumber, givenAt: new Date(d.givenAt), givenById: author(d.givenBy), note: d.note, createdAt: new Date(d.createdAt),
+            })))
+          }
           if (e.enteredInError) {
             await tx.update(schema.timelineEntries).set({ enteredInError: true, errorReason: e.errorReason, errorById: e.errorBy ? author(e.errorBy) : null, errorAt: e.errorAt ? new Date(e.errorAt) : null }).where(where)
           }

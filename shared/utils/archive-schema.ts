@@ -80,13 +80,18 @@ const revisionRecord = z.strictObject({
   revision: z.number().int().min(1), occurredAt: isoTime, data: z.record(z.string(), z.unknown()), author: id, reason: text(2000).nullable(), createdAt: isoTime,
 })
 
+// A dose of a treatment course ticked off as given. Archives made before doses were recorded have none.
+const doseRecord = z.strictObject({ doseNumber: z.number().int().min(1).max(1000), givenAt: isoTime, givenBy: id, note: text(500), createdAt: isoTime })
+
 export const timelineRecord = z.strictObject({
   id, fishId: id, kind: z.enum(TIMELINE_KINDS), occurredAt: isoTime, author: id,
   relatedFishId: id.nullable(), linkedEntryId: id.nullable(), photoId: id.nullable(),
   data: z.record(z.string(), z.unknown()), revision: z.number().int().min(1),
   enteredInError: z.boolean(), errorReason: text(2000).nullable(), errorBy: id.nullable(), errorAt: isoTime.nullable(),
   createdAt: isoTime, revisions: z.array(revisionRecord).min(1).max(1000),
+  doses: z.array(doseRecord).max(1000).optional(),
 }).refine(r => r.revisions.length === r.revision && r.revisions.every((v, i) => v.revision === i + 1), 'Revisions must run 1, 2, … up to the current one')
+  .refine(r => !r.doses?.length || (r.kind === 'treatment' && new Set(r.doses.map(d => d.doseNumber)).size === r.doses.length), 'Doses belong to a treatment, each dose once')
 
 export const photoRecord = z.strictObject({
   id, fishId: id, uploader: id, originalName: text(255), view: z.enum(['top', 'left', 'right', 'closeup', 'other']), caption: text(300),

@@ -46,13 +46,20 @@ async function buildSourcePond() {
   const wrongId = wrong.id ?? wrong.entry?.id
   expect((await keeper.client.post(`/api/timeline/${wrongId}/entered-in-error`, { reason: 'Scale read in the wrong unit' })).status).toBe(200)
   await post(vet.client, fish.id, { kind: 'exam', occurredAt: '2025-06-02', data: { reason: 'Spring check', history: '', findings: [], assessment: 'Healthy', plan: 'Recheck next spring' } })
+  // A course of two doses, the first ticked off by the keeper: the doses travel with the entry.
+  const course = await post(vet.client, fish.id, {
+    kind: 'treatment', occurredAt: '2025-06-02',
+    data: { drug: 'Course drug', route: 'in_feed', dose: 30, doseUnit: 'mg/kg of feed', startOn: '2025-06-02', doseCount: 2, intervalHours: 24 },
+  })
+  const dose = await keeper.client.post(`/api/timeline/${course.entry.id}/doses`, { doseNumber: 1, givenAt: '2025-06-02T18:00:00Z', note: 'With the evening feed' })
+  expect(dose.status, JSON.stringify(dose.body)).toBe(201)
   const upload = tusUpload(MAIN_URL, owner.client, await makeJpeg({ width: 800, height: 600 }), { metadata: { fishId: fish.id, filename: 'ember.jpg', view: 'top' } })
   const uploaded = await upload.done
   expect(uploaded.headers['photo-state']).toBe('ready')
   return { owner, keeper, vet, pond, fish, companion, chip }
 }
 
-const ID_FIELDS = new Set(['id', 'ref', 'fishId', 'relatedFishId', 'linkedEntryId', 'photoId', 'profilePhotoId', 'by', 'author', 'uploader', 'errorBy', 'file'])
+const ID_FIELDS = new Set(['id', 'ref', 'fishId', 'relatedFishId', 'linkedEntryId', 'photoId', 'profilePhotoId', 'by', 'author', 'uploader', 'errorBy', 'givenBy', 'file'])
 
 /** The archive's records with ids replaced by what they point at, so two archives of the same pond compare equal. */
 function normalise(contents: ZipContents) {
@@ -122,7 +129,7 @@ describe('pond archive export', () => {
   it('holds a manifest with its schema version, JSON Lines and CSV per kind of record, and the photo originals', async () => {
     const contents = await readZip(archive)
     const manifest = JSON.parse(contents.get('manifest.json')!.toString())
-    expect(manifest).toMatchObject({ format: 'fintrail-pond-archive', schemaVersion: 1, pond: { name: 'Archive pond', volumeLitres: 12000 }, counts: { fish: 2, photos: 1, fishEdits: 1, timeline: 3 } })
+    expect(manifest).toMatchObject({ format: 'fintrail-pond-archive', schemaVersion: 1, pond: { name: 'Archive pond', volumeLitres: 12000 }, counts: { fish: 2, photos: 1, fishEdits: 1, timeline: 4 } })
     for (const name of ['data/people.jsonl', 'data/fish.jsonl', 'data/fish-edits.jsonl', 'data/timeline.jsonl', 'data/photos.jsonl']) {
       expect(createHash('sha256').update(contents.get(name)!).digest('hex'), name).toBe(manifest.files[name].sha256)
     }
@@ -150,6 +157,9 @@ describe('pond archive import', () => {
     expect(ember).toMatchObject({ microchip: source.chip, latestWeightG: 1500 })
     const page = (await client.get(`/api/fish/${ember.id}/timeline`)).body
     expect(JSON.stringify(page)).toContain('Archive Vet')
+    const course = page.entries.find((e: { kind: string }) => e.kind === 'treatment')
+    expect(course.derived.schedule.slots[0]).toMatchObject({ state: 'given', given: { givenAt: '2025-06-02T18:00:00.000Z', givenBy: { name: 'Archive Keeper' }, note: 'With the evening feed' } })
+    expect(course.derived.schedule.slots[1].state).toBe('missed')
 
     for (let i = 0; i < 50; i++) {
       const photos = (await client.get(`/api/fish/${ember.id}/photos`)).body
