@@ -1,4 +1,5 @@
 // Fintrail: Nuxt 4 app with a Nitro server, PostgreSQL through Drizzle, sessions from nuxt-auth-utils.
+import { build } from 'esbuild'
 import { buildUploadWorker } from './scripts/build-upload-worker'
 
 export default defineNuxtConfig({
@@ -40,6 +41,9 @@ export default defineNuxtConfig({
     signInWindowSeconds: 900,
     sessionIdleSeconds: 60 * 60 * 24 * 7,
     sessionAbsoluteSeconds: 60 * 60 * 24 * 30,
+    // Tests only: a secret that lets a request set the clock of the due lists and run the digest job.
+    // Empty (the default) switches the test clock off entirely. See server/utils/clock.ts.
+    testClock: '',
     session: {
       name: 'fintrail-session',
       maxAge: 60 * 60 * 24 * 30,
@@ -48,6 +52,16 @@ export default defineNuxtConfig({
   },
   compatibilityDate: '2026-01-01',
   nitro: {
+    hooks: {
+      // "Which fish is this?" runs OpenCV in a worker thread, which needs a file of its own beside the
+      // server entry: bundled here (OpenCV included) as CommonJS, because OpenCV's loader uses __dirname.
+      async compiled(nitro) {
+        await build({
+          entryPoints: ['server/fish-id/worker.ts'], bundle: true, platform: 'node', target: 'node20', format: 'cjs',
+          external: ['sharp'], outfile: `${nitro.options.output.serverDir}/which-fish-worker.cjs`, logLevel: 'warning',
+        })
+      },
+    },
     experimental: { tasks: true },
     // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
     scheduledTasks: { '0 * * * *': ['photos:purge'] },

@@ -58,9 +58,10 @@ async function main() {
       }
     }
     for (const photo of photos) {
-      const { id, fishName, profile, ...row } = photo
+      const { id, fishName, profile, features, featuresVersion, ...row } = photo
       const uploaderId = whitlockPondFish.some(f => f.name === fishName) ? ids.otherClient : ids.owner
       await tx.insert(schema.photos).values({ id, fishId: fishIds[fishName]!, uploaderId, state: 'ready', createdAt: row.takenAt, updatedAt: row.takenAt, ...row })
+      if (features) await tx.insert(schema.photoFeatures).values({ photoId: id, version: featuresVersion, features })
       if (profile) await tx.update(schema.fish).set({ profilePhotoId: id }).where(eq(schema.fish.id, fishIds[fishName]!))
     }
     await seedHistories(tx, { people: ids, ponds: { garden, courtyard, whitlock }, fish: fishIds })

@@ -181,6 +181,7 @@ export interface TreatmentForm {
   amountAdded: string
   amountAddedUnit: string
   givenBy: string
+  recheckOn: string
   instructedById: string
   notes: string
 }
@@ -227,7 +228,7 @@ export function blankForm<K extends EntryKind>(kind: K, context: FormContext): E
     treatment: () => ({
       drug: '', route: '', injectionSite: '', dose: '', doseUnit: 'mg/L', startOn: today, endMode: 'duration', durationDays: '', endOn: '',
       doseCount: '', intervalHours: '24', firstDoseTime: nowLocalTime(), exposureMinutes: '', volumeTreated: '', amountAdded: '', amountAddedUnit: 'g',
-      givenBy: context.userName, instructedById: '', notes: '',
+      givenBy: context.userName, instructedById: '', notes: '', recheckOn: '',
     }),
     lab_result: () => ({ panel: 'haematology', panelName: '', laboratory: '', sample: '', intervalSource: '', analytes: [], organisms: [], findings: '' }),
     companion: () => ({ relatedFishId: '', relation: 'stays_close', relationText: '', note: '' }),
@@ -277,7 +278,7 @@ export function formData(kind: EntryKind, form: EntryForms[EntryKind], units: Un
         exposureMinutes: TIMED_ROUTES.includes(f.route as TreatmentRoute) ? typedNumber(f.exposureMinutes) : undefined,
         volumeTreatedL: typedNumber(f.volumeTreated),
         amountAdded: amount, amountAddedUnit: amount === undefined ? undefined : f.amountAddedUnit,
-        givenBy: f.givenBy, instructedById: f.instructedById || undefined, notes: f.notes,
+        givenBy: f.givenBy, instructedById: f.instructedById || undefined, notes: f.notes, recheckOn: f.recheckOn || undefined,
       }
     }
     case 'lab_result': {
@@ -325,7 +326,7 @@ export function formFromData(kind: EntryKind, data: Data, context: FormContext):
     case 'treatment': {
       const form = {
         ...(blank as TreatmentForm),
-        ...stringsOf(data, ['drug', 'injectionSite', 'dose', 'startOn', 'durationDays', 'endOn', 'doseCount', 'intervalHours', 'exposureMinutes', 'amountAdded', 'givenBy', 'instructedById', 'notes']),
+        ...stringsOf(data, ['drug', 'injectionSite', 'dose', 'startOn', 'durationDays', 'endOn', 'doseCount', 'intervalHours', 'exposureMinutes', 'amountAdded', 'givenBy', 'instructedById', 'notes', 'recheckOn']),
         // A route or unit stored in an earlier form ('bath', 'dose') is not offered: the person chooses again.
         route: (TREATMENT_ROUTES as readonly string[]).includes(String(data.route)) ? String(data.route) : '',
         doseUnit: data.doseUnit === 'dose' ? 'per fish' : shown(data.doseUnit),

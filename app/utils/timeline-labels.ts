@@ -15,6 +15,7 @@ export const KIND_LABELS: Record<TimelineKind, string> = {
   photo: 'Photo',
   move: 'Move',
   owner_change: 'New owner',
+  pond_event: 'Whole pond',
 }
 
 // Colour per kind from our palette: clinical kinds warm, daily care cool, states by meaning.
@@ -32,6 +33,7 @@ export const KIND_TONES: Record<TimelineKind, string> = {
   photo: 'bg-sand-100 text-pond-700',
   move: 'bg-sand-100 text-pond-700',
   owner_change: 'bg-sand-100 text-pond-700',
+  pond_event: 'bg-pond-200 text-pond-900',
 }
 
 export const SIGN_LABELS: Record<string, string> = {

@@ -305,11 +305,39 @@ export interface PhotoConditions {
   blur?: number
   /** JPEG quality, 1..100. */
   quality?: number
+  /** Water ripple over the fish: 0 none, 1 a breeze on the surface (a sine displacement of the pixels). */
+  ripple?: number
+}
+
+/** Shifts each pixel along two crossing sine waves, as a rippled surface bends the view of the fish below. */
+async function rippled(image: sharp.Sharp, strength: number, seed: number) {
+  const { data, info } = await image.removeAlpha().raw().toBuffer({ resolveWithObject: true })
+  const { width, height, channels } = info
+  const out = Buffer.alloc(data.length)
+  const amplitude = strength * width * 0.008
+  const random = seededRandom(seed)
+  const waves = Array.from({ length: 3 }, () => ({ length: width * (0.05 + random() * 0.08), phase: random() * Math.PI * 2, angle: random() * Math.PI }))
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      let dx = 0
+      let dy = 0
+      for (const w of waves) {
+        const t = (x * Math.cos(w.angle) + y * Math.sin(w.angle)) / w.length * Math.PI * 2 + w.phase
+        dx += Math.sin(t) * amplitude * Math.cos(w.angle)
+        dy += Math.sin(t) * amplitude * Math.sin(w.angle)
+      }
+      const sx = Math.min(width - 1, Math.max(0, Math.round(x + dx)))
+      const sy = Math.min(height - 1, Math.max(0, Math.round(y + dy)))
+      data.copy(out, (y * width + x) * channels, (sy * width + sx) * channels, (sy * width + sx) * channels + channels)
+    }
+  }
+  return sharp(out, { raw: { width, height, channels } })
 }
 
 /** Renders the scene to a JPEG, as a phone would save it. */
 export async function renderFishJpeg(pattern: FishPattern, scene: SceneOptions, conditions: PhotoConditions = {}) {
   let image = sharp(Buffer.from(fishSvg(pattern, scene)), { density: 72 })
+  if (conditions.ripple) image = await rippled(image, conditions.ripple, pattern.seed + 101)
   const warmth = conditions.warmth ?? 0
   const brightness = conditions.brightness ?? 1
   if (warmth !== 0 || brightness !== 1) {

@@ -12,6 +12,8 @@ import sharp from 'sharp'
 import type { PhotoVariant } from '../../server/db/schema/photos'
 import { makeDerived, readPhotoHeader } from '../../server/utils/photo-derive'
 import { sha256OfFile, sniffPhotoType } from '../../server/utils/photo-files'
+import { decodeForFeatures } from '../../server/fish-id/decode'
+import { extractFeatures, FEATURES_VERSION, packFeatures } from '../../server/fish-id/features'
 import { fishPattern, renderFishJpeg, type FishPattern, type SceneOptions } from './fish-patterns'
 import { seededRandom } from './growth'
 
@@ -49,6 +51,9 @@ export interface PreparedPhoto {
   variants: PhotoVariant[]
   /** The photo that becomes the fish's profile picture. */
   profile: boolean
+  /** "Which fish is this?" features of a photo from above (server/fish-id/features.ts), packed. */
+  features: Buffer | null
+  featuresVersion: number
 }
 
 /** One number per fish name: the same fish looks the same on every run. */
@@ -113,7 +118,7 @@ let codeVersion: string | undefined
 async function drawingCodeVersion() {
   if (!codeVersion) {
     const hash = createHash('sha256')
-    for (const file of ['scripts/seed/fish-patterns.ts', 'scripts/seed/photos.ts', 'server/utils/photo-derive.ts', 'shared/utils/photo-limits.ts']) {
+    for (const file of ['scripts/seed/fish-patterns.ts', 'scripts/seed/photos.ts', 'server/utils/photo-derive.ts', 'shared/utils/photo-limits.ts', 'server/fish-id/features.ts', 'server/fish-id/decode.ts']) {
       hash.update(await readFile(join(ROOT, file)))
     }
     codeVersion = hash.digest('hex')
@@ -151,6 +156,20 @@ async function cachedPhoto(pattern: FishPattern, recipe: Recipe): Promise<{ dir:
   }
 }
 
+/** Features as the server computes them when a photo from above becomes ready: from the 1024 px copy. */
+async function cachedFeatures(dir: string) {
+  const file = join(dir, `features-v${FEATURES_VERSION}.bin`)
+  if (await exists(file)) return readFile(file)
+  // OpenCV takes a second or two to start: loaded only when some photo has no features yet.
+  const { loadOpenCv, openCv } = await import('../../server/fish-id/opencv')
+  await loadOpenCv()
+  const packed = packFeatures(extractFeatures(openCv(), await decodeForFeatures(join(dir, 'derived', '1024.jpg'))))
+  const partial = `${file}.tmp-${randomUUID()}`
+  await writeFile(partial, packed)
+  await rename(partial, file)
+  return packed
+}
+
 /** A second name for the cached file where the file system allows it, else a copy. */
 async function place(from: string, to: string) {
   await mkdir(dirname(to), { recursive: true })
@@ -172,12 +191,13 @@ export async function prepareDemoPhotos(fish: DemoPhotoFish[], storageDir: strin
       for (const file of await readdir(join(dir, 'derived'))) {
         await place(join(dir, 'derived', file), join(storageDir, 'photos', 'derived', id, file))
       }
+      const features = planned.view === 'top' ? await cachedFeatures(dir) : null
       const slug = f.name.toLowerCase()
       return {
         id, fishName: f.name, uploadId: createHash('sha256').update(`demo-photo:${f.name}:${index}:${id}`).digest('hex').slice(0, 32),
         originalName: `${slug}-${planned.view === 'top' ? 'from-above' : planned.view}-${planned.takenOn}.jpg`,
         view: planned.view, caption: planned.caption, takenAt: new Date(`${planned.takenOn}T10:30:00Z`),
-        ...meta, profile: planned.profile,
+        ...meta, profile: planned.profile, features, featuresVersion: FEATURES_VERSION,
       }
     }))
   })

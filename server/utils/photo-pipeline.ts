@@ -116,7 +116,11 @@ async function processPhoto(photo: PhotoRow): Promise<PhotoRow> {
     const [ready] = await useDb().update(schema.photos)
       .set({ state: 'ready', failureReason: null, variants, updatedAt: new Date() })
       .where(eq(schema.photos.id, photo.id)).returning()
-    if (ready && !ready.removedAt) await offerAsProfile(ready)
+    if (ready && !ready.removedAt) {
+      await offerAsProfile(ready)
+      // A photo from above becomes a reference for "which fish is this?": its features, once, in the background.
+      await queuePhotoFeatures(ready)
+    }
     return ready ?? photo
   }
   catch (error) {

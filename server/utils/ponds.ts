@@ -17,6 +17,7 @@ export async function listPondsOf(userId: string) {
 export async function pondDetail(pondId: string, role: PondRole, readOnly = false): Promise<PondDetail> {
   const [pond] = await useDb().select({
     id: schema.ponds.id, name: schema.ponds.name, volumeLitres: schema.ponds.volumeLitres, volumeMeasurement: schema.ponds.volumeMeasurement, notes: schema.ponds.notes,
+    healthCheckDay: schema.ponds.healthCheckDay, waterTestIntervalDays: schema.ponds.waterTestIntervalDays,
     createdAt: schema.ponds.createdAt, updatedAt: schema.ponds.updatedAt, fishCount: aliveFishCount,
   }).from(schema.ponds).where(eq(schema.ponds.id, pondId))
   if (!pond) throw createError({ statusCode: 404, statusMessage: 'Pond not found' })

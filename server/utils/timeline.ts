@@ -177,6 +177,7 @@ export async function insertEntry(tx: Tx, values: { id?: string, fish: FishRow, 
     ...(values.id ? { id: values.id } : {}),
     fishId: values.fish.id, pondId: values.fish.pondId, kind: values.kind, occurredAt: values.occurredAt,
     authorId: values.authorId, data: values.data, ...mirroredColumns(values.kind, values.data),
+    visitId: await openVisitId(tx, values.fish.pondId, values.authorId),
   }).returning()
   await tx.insert(schema.timelineRevisions).values({ entryId: entry!.id, revision: 1, occurredAt: entry!.occurredAt, data: entry!.data, authorId: values.authorId })
   return entry!

@@ -35,6 +35,9 @@ export interface PondDetail {
   /** How the volume was measured (shape, unit, readings); null when it was typed as a number. */
   volumeMeasurement: PondVolumeMeasurement | null
   notes: string
+  /** The yearly health check's month and day (MM-DD). */
+  healthCheckDay: string
+  waterTestIntervalDays: number
   role: PondRole
   /** Kept on after a handover to look, not to change: the client hides what the server would refuse. */
   readOnly: boolean

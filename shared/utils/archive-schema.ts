@@ -5,7 +5,7 @@
 import { z } from 'zod'
 import { POND_ROLES } from '../types'
 import { fishCreateSchema } from './fish-schemas'
-import { ENTRY_DATA_SCHEMAS, TIMELINE_KINDS, type EntryKind } from './timeline-schemas'
+import { ENTRY_DATA_SCHEMAS, STORED_TIMELINE_KINDS, type EntryKind } from './timeline-schemas'
 import { writeDecision } from './timeline-rules'
 
 export const ARCHIVE_FORMAT = 'fintrail-pond-archive'
@@ -84,7 +84,7 @@ const revisionRecord = z.strictObject({
 const doseRecord = z.strictObject({ doseNumber: z.number().int().min(1).max(1000), givenAt: isoTime, givenBy: id, note: text(500), createdAt: isoTime })
 
 export const timelineRecord = z.strictObject({
-  id, fishId: id, kind: z.enum(TIMELINE_KINDS), occurredAt: isoTime, author: id,
+  id, fishId: id, kind: z.enum(STORED_TIMELINE_KINDS), occurredAt: isoTime, author: id,
   relatedFishId: id.nullable(), linkedEntryId: id.nullable(), photoId: id.nullable(),
   data: z.record(z.string(), z.unknown()), revision: z.number().int().min(1),
   enteredInError: z.boolean(), errorReason: text(2000).nullable(), errorBy: id.nullable(), errorAt: isoTime.nullable(),

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { POND_ROLES } from '../types'
 import { emailSchema } from './auth-schemas'
+import { checkDaySchema, waterTestIntervalSchema } from './due'
 
 export const uuidParam = z.uuid('Not a valid id')
 
@@ -10,6 +11,8 @@ export const pondCreateSchema = z.strictObject({
   name: z.string().trim().min(1, 'Give the pond a name').max(120, 'At most 120 characters'),
   volumeLitres: z.number('Enter a number').min(0, 'Cannot be negative').max(100_000_000, 'Too large for a pond').nullable().optional(),
   notes: z.string().max(4000, 'At most 4000 characters').optional(),
+  healthCheckDay: checkDaySchema.optional(),
+  waterTestIntervalDays: waterTestIntervalSchema.optional(),
 })
 
 export const pondUpdateSchema = pondCreateSchema.partial()

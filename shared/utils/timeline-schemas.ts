@@ -3,10 +3,13 @@
 // Values are stored in metric units; the typed text may be kept beside them in `entered`.
 import { z } from 'zod'
 
-/** Kinds a person writes through the timeline. 'photo' comes from the photos table; moves and owner changes come later. */
+/** Kinds a person writes through the timeline. 'photo' comes from the photos table, 'pond_event' from the pond's own events; moves and owner changes come later. */
 export const ENTRY_KINDS = ['measurement', 'observation', 'exam', 'problem', 'procedure', 'anaesthesia', 'treatment', 'lab_result', 'companion', 'death'] as const
 export type EntryKind = typeof ENTRY_KINDS[number]
-export const TIMELINE_KINDS = [...ENTRY_KINDS, 'photo', 'move', 'owner_change'] as const
+/** The kinds a timeline_entries row can have (the database enum). */
+export const STORED_TIMELINE_KINDS = [...ENTRY_KINDS, 'photo', 'move', 'owner_change'] as const
+/** What a fish's timeline shows: its stored entries and the whole-pond events of the ponds it lived in. */
+export const TIMELINE_KINDS = [...STORED_TIMELINE_KINDS, 'pond_event'] as const
 export type TimelineKind = typeof TIMELINE_KINDS[number]
 
 const limitedText = (max: number, missing = 'Enter text') => z.string(missing).trim().max(max, `At most ${max} characters`)
@@ -190,6 +193,8 @@ export const treatmentData = z.strictObject({
   instructedById: personId('Choose one of the pond’s vets').optional(),
   /** The instructing vet's name, written by the server from `instructedById`. */
   instructedBy: limitedText(120).optional(),
+  // When the vet wants to see the fish again; it shows in what is due until an exam on a later day.
+  recheckOn: calendarDay.optional(),
   notes: limitedText(4000).default(''),
 }).superRefine((d, ctx) => {
   const issue = (path: string, message: string) => ctx.addIssue({ code: 'custom', path: [path], message })

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto'
 import { readFileSync } from 'node:fs'
 import { resolve } from 'node:path'
 
@@ -27,3 +28,13 @@ export function testEnv(): TestEnv {
 // Overridable so that two people can run test files at once on one machine.
 export const MAIN_PORT = Number(process.env.FINTRAIL_TEST_PORT ?? 3100)
 export const MAIN_URL = `http://127.0.0.1:${MAIN_PORT}`
+
+/** The test server's clock secret (server/utils/clock.ts), derived from this run's random session password. */
+export function testClockSecret() {
+  return createHash('sha256').update(`test-clock:${testEnv().sessionPassword}`).digest('hex')
+}
+
+/** Headers that make the test server work out due lists (and run the digest) as of `now`. */
+export function fixedClock(now: string | Date): Record<string, string> {
+  return { 'x-fintrail-test-clock': testClockSecret(), 'x-fintrail-test-now': new Date(now).toISOString() }
+}

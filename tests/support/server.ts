@@ -1,7 +1,7 @@
 import { spawn, type ChildProcess } from 'node:child_process'
 import { mkdirSync } from 'node:fs'
 import { resolve } from 'node:path'
-import { ROOT, testEnv } from './env'
+import { ROOT, testClockSecret, testEnv } from './env'
 
 export interface RunningServer {
   url: string
@@ -33,6 +33,7 @@ export async function startServer(port: number, extraEnv: Record<string, string 
     NUXT_STORAGE_DIR: env.storageDir,
     NUXT_TRUST_PROXY: 'true',
     NUXT_SIGN_IN_IP_LIMIT: '30',
+    NUXT_TEST_CLOCK: testClockSecret(),
   }
   const childEnv = Object.fromEntries(Object.entries({ ...baseEnv, ...extraEnv }).filter(([, value]) => value !== null))
   // FINTRAIL_SERVER_ENTRY points at a copy of a build, so a rebuild in the checkout cannot pull it away mid-run.

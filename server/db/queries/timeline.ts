@@ -47,7 +47,7 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
   const { kinds, cursor } = options
   const n = options.limit + 1
   const all = kinds.length === 0
-  const entryKinds = kinds.filter(k => k !== 'photo')
+  const entryKinds = kinds.filter(k => k !== 'photo' && k !== 'pond_event')
   const before = (at: SQL, id: SQL) => (cursor ? sql`and (${at}, ${id}) < (${cursor.at}::timestamptz, ${cursor.id}::uuid)` : sql``)
   const branches: SQL[] = []
   if (all || entryKinds.length) {
@@ -74,6 +74,18 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
       from photos p
       where p.fish_id = ${fishId} and p.state = 'ready' and p.removed_at is null ${before(at, sql`p.id`)}
       order by ${at} desc, p.id desc limit ${n})`)
+  }
+  if (all || kinds.includes('pond_event')) {
+    // Whole-pond events of the ponds this fish has lived in, kept to the moments it lived there (migration 0018).
+    branches.push(sql`(select pe.id, 'pond_event'::text as kind, pe.occurred_at, pe.author_id,
+        pe.data || jsonb_build_object('eventKind', pe.kind, 'volumeLitres', pe.volume_litres, 'pondId', pe.pond_id, 'pondName', pond.name) as data,
+        1 as revision, pe.entered_in_error, pe.error_reason, pe.error_by_id, pe.error_at, 'subject'::text as viewpoint, null::uuid as other_fish_id,
+        null::uuid as linked_entry_id, null::uuid as photo_id, pe.created_at
+      from pond_events pe join ponds pond on pond.id = pe.pond_id
+      where pe.pond_id in (select f.pond_id from fish f where f.id = ${fishId}
+          union select (m.data->'fromPond'->>'id')::uuid from timeline_entries m where m.fish_id = ${fishId} and m.kind = 'move')
+        and fintrail_fish_pond_at(${fishId}, pe.occurred_at) = pe.pond_id ${before(sql`pe.occurred_at`, sql`pe.id`)}
+      order by pe.occurred_at desc, pe.id desc limit ${n})`)
   }
   if (!branches.length) return null
   return sql`

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm'
-import { index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { customType, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { fish } from './fish'
 import { users } from './users'
 
@@ -38,3 +38,18 @@ export const photos = pgTable('photos', {
   uniqueIndex('photos_fish_sha256_live_unique').on(t.fishId, t.sha256).where(sql`${t.removedAt} is null and ${t.sha256} is not null`),
   index('photos_removed_at_idx').on(t.removedAt).where(sql`${t.removedAt} is not null`),
 ])
+
+const bytea = customType<{ data: Buffer, driverData: Buffer }>({ dataType: () => 'bytea' })
+
+/**
+ * What "Which fish is this?" compares, computed once when a photo from above becomes ready
+ * (server/fish-id/features.ts): keypoints and the colour-patch layout, packed in one value.
+ * Goes with its photo when the photo is deleted for good.
+ */
+export const photoFeatures = pgTable('photo_features', {
+  photoId: uuid('photo_id').primaryKey().references(() => photos.id, { onDelete: 'cascade' }),
+  // Features of an older method version are computed again before use.
+  version: integer('version').notNull(),
+  features: bytea('features').notNull(),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+})

@@ -1,4 +1,4 @@
-import { boolean, index, jsonb, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, index, integer, jsonb, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import type { PondVolumeMeasurement } from '../../../shared/utils/pond-volume-schemas'
 import type { PondWaterTargets } from '../../../shared/utils/water-targets'
 import { timestamps } from './columns'
@@ -15,6 +15,10 @@ export const ponds = pgTable('ponds', {
   // The pond's own target ranges; a parameter not listed uses the published default.
   waterTargets: jsonb('water_targets').$type<PondWaterTargets>().notNull().default({}),
   notes: text('notes').notNull().default(''),
+  // The yearly health check falls on this month and day (MM-DD); spring by default.
+  healthCheckDay: varchar('health_check_day', { length: 5 }).notNull().default('04-01'),
+  // Days between water tests before one counts as overdue.
+  waterTestIntervalDays: integer('water_test_interval_days').notNull().default(7),
   ...timestamps,
 })
 

@@ -3,6 +3,7 @@ import { fish } from './fish'
 import { ponds } from './ponds'
 import { users } from './users'
 import { photos } from './photos'
+import { visits } from './pond-care'
 
 // move and owner_change are written by the custody work; they are listed now so the enum need not change then.
 export const timelineKind = pgEnum('timeline_kind', [
@@ -21,6 +22,8 @@ export const timelineEntries = pgTable('timeline_entries', {
   relatedFishId: uuid('related_fish_id').references(() => fish.id),
   linkedEntryId: uuid('linked_entry_id'),
   photoId: uuid('photo_id').references(() => photos.id),
+  // The vet visit the entry was written during (the author's open visit of the pond), if any.
+  visitId: uuid('visit_id').references(() => visits.id),
   // The current revision's fields, copied here so lists and computations need no join.
   data: jsonb('data').$type<Record<string, unknown>>().notNull(),
   revision: integer('revision').notNull().default(1),
@@ -40,6 +43,7 @@ export const timelineEntries = pgTable('timeline_entries', {
   index('timeline_linked_entry_idx').on(t.linkedEntryId),
   index('timeline_photo_idx').on(t.photoId),
   index('timeline_error_by_idx').on(t.errorById),
+  index('timeline_visit_idx').on(t.visitId),
 ])
 
 // Every revision ever written, the first included; rows here are never updated or deleted.

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm'
-import { index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { timestamps } from './columns'
 
 export const unitSystem = pgEnum('unit_system', ['metric', 'us'])
@@ -10,6 +10,8 @@ export const users = pgTable('users', {
   name: varchar('name', { length: 120 }).notNull(),
   passwordHash: text('password_hash').notNull(),
   units: unitSystem('units').notNull().default('metric'),
+  // The daily e-mail of what is due in the person's ponds; they can turn it off on the account page.
+  dueDigest: boolean('due_digest').notNull().default(true),
   ...timestamps,
 }, t => [uniqueIndex('users_email_unique').on(sql`lower(${t.email})`)])
 

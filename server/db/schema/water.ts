@@ -1,6 +1,7 @@
 import { index, numeric, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core'
 import { ponds } from './ponds'
 import { users } from './users'
+import { visits } from './pond-care'
 
 // Readings are numeric, not float: what the person typed (after unit conversion) comes back unchanged.
 const reading = (name: string) => numeric(name, { mode: 'number' })
@@ -21,8 +22,11 @@ export const waterTests = pgTable('water_tests', {
   dissolvedOxygenMgL: reading('dissolved_oxygen_mg_l'),
   salinityPpt: reading('salinity_ppt'),
   notes: text('notes').notNull().default(''),
+  // The vet visit the test was made during (the tester's open visit of the pond), if any.
+  visitId: uuid('visit_id').references(() => visits.id),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 }, t => [
   index('water_tests_pond_tested_idx').on(t.pondId, t.testedAt.desc(), t.id.desc()),
   index('water_tests_tested_by_idx').on(t.testedById),
+  index('water_tests_visit_idx').on(t.visitId),
 ])

@@ -22,6 +22,7 @@ export default defineEventHandler(async (event) => {
     const readings = Object.fromEntries(MEASURED_WATER_PARAMETERS.map(p => [p, input[p] ?? null]))
     const [row] = await tx.insert(schema.waterTests).values({
       id: input.id, pondId, testedAt: new Date(input.testedAt), testedById: user.id, notes: input.notes, ...readings,
+      visitId: await openVisitId(tx, pondId, user.id),
     }).onConflictDoNothing().returning()
     // Two retries racing: the other one wrote it first.
     if (!row) throw createError({ statusCode: 409, statusMessage: 'Id in use', message: 'This water test is being saved already; try again' })
