@@ -1,7 +1,7 @@
 import type { H3Event } from 'h3'
 import { and, eq, ne, sql } from 'drizzle-orm'
 import type { z } from 'zod'
-import type { FieldErrors, PondRole } from '#shared/types'
+import type { CurrentUser, FieldErrors, PondRole } from '#shared/types'
 import type { TimelineEntryView } from '#shared/types/timeline'
 import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
 import { amendDecision, ENTRY_RULES, writeDecision } from '#shared/utils/timeline-rules'
@@ -62,7 +62,7 @@ export function validateEntryData<K extends EntryKind>(kind: K, data: unknown): 
 }
 
 export interface EntryAccess {
-  user: { id: string, name: string }
+  user: CurrentUser
   role: PondRole
   fish: FishRow
   entry: EntryRow

@@ -1,3 +1,4 @@
+import type { DecimalMark } from '../utils/decimal'
 import type { PondVolumeMeasurement } from '../utils/pond-volume-schemas'
 
 export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
@@ -18,6 +19,8 @@ export interface CurrentUser {
   name: string
   email: string
   units: UnitSystem
+  /** How this person writes decimals; every number they type is read with it. */
+  decimalMark: DecimalMark
 }
 
 export interface PondSummary {

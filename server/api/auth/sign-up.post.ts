@@ -9,7 +9,7 @@ export default defineEventHandler(async (event) => {
     throw createError({ statusCode: 409, statusMessage: 'E-mail already registered', data: { fieldErrors: { email: ['An account with this e-mail exists: sign in or reset the password'] } } })
   }
   const [user] = await useDb().insert(schema.users)
-    .values({ name: input.name, email: input.email, passwordHash: await hashPassword(input.password) })
+    .values({ name: input.name, email: input.email, passwordHash: await hashPassword(input.password), decimalMark: input.decimalMark ?? 'point' })
     .returning()
   await startSession(event, user!)
   setResponseStatus(event, 201)
