@@ -1,5 +1,6 @@
 // Fintrail: Nuxt 4 app with a Nitro server, PostgreSQL through Drizzle, sessions from nuxt-auth-utils.
 import { build } from 'esbuild'
+import { buildUploadWorker } from './scripts/build-upload-worker'
 
 export default defineNuxtConfig({
   modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint'],
@@ -70,6 +71,10 @@ export default defineNuxtConfig({
     experimental: { tasks: true },
     // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
     scheduledTasks: { '0 * * * *': ['photos:purge'] },
+    hooks: {
+      // The upload worker thread starts from a file of its own, bundled beside the server.
+      compiled: nitro => buildUploadWorker(nitro.options.output.serverDir),
+    },
   },
   typescript: { strict: true },
   telemetry: false,

@@ -35,7 +35,8 @@ async function main() {
   await db.transaction(async (tx) => {
     const ids = {} as Record<PersonKey, string>
     for (const [key, person] of Object.entries(people) as [PersonKey, typeof people[PersonKey]][]) {
-      const [row] = await tx.insert(schema.users).values({ name: person.name, email: person.email, passwordHash, units: key === 'family' ? 'us' : 'metric' }).returning()
+      // The demo people write decimals with a point (set here, not left to the default, so tests can rely on it).
+      const [row] = await tx.insert(schema.users).values({ name: person.name, email: person.email, passwordHash, units: key === 'family' ? 'us' : 'metric', decimalMark: 'point' }).returning()
       ids[key] = row!.id
     }
     const pond = async (name: string, volumeLitres: number, notes: string, members: [PersonKey, 'owner' | 'keeper' | 'vet'][]) => {

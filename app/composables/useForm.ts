@@ -12,10 +12,19 @@ export function useForm<S extends z.ZodType>(schema: S) {
   const errors = ref<FieldErrors>({})
   const message = ref('')
   const pending = ref(false)
+  const numberFields = provideNumberFields()
 
   async function submit<R>(values: unknown, send: (data: z.output<S>) => Promise<R>): Promise<R | undefined> {
     errors.value = {}
     message.value = ''
+    // A typed number the parser refused: each number field shows the parser's own message (live, so it
+    // goes away once the text reads), and nothing is sent.
+    const unreadable = numberFields.check()
+    if (Object.keys(unreadable).length) {
+      message.value = 'Some fields need attention.'
+      if (import.meta.client) document.getElementById(Object.keys(unreadable)[0]!)?.focus()
+      return undefined
+    }
     const parsed = schema.safeParse(values)
     if (!parsed.success) {
       errors.value = fieldErrorsFrom(parsed.error)

@@ -1,4 +1,5 @@
 import type { FishPhotos, PhotoItem } from '#shared/types'
+import { formatDay, formatEntryDate } from '~/utils/timeline-labels'
 
 export function useFishPhotos(fishId: MaybeRefOrGetter<string>) {
   return useFetch<FishPhotos>(() => `/api/fish/${toValue(fishId)}/photos`, { key: `fish-photos-${toValue(fishId)}` })
@@ -15,13 +16,14 @@ export function photoSources(photoId: string) {
   }
 }
 
-const DAY = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
-
-/** "Taken 12 May 2024" from the photo's own date, else "Uploaded …". UTC on both sides, so server and browser agree. */
+/**
+ * "Taken 12 May 2024" from the photo's own date, else "Uploaded …", in the reader's date style. The camera
+ * writes its wall-clock time with no zone (stored as if UTC), so the taken day is shown as a calendar day.
+ */
 export function photoDateLabel(photo: Pick<PhotoItem, 'takenAt' | 'uploadedAt'>) {
-  return photo.takenAt ? `Taken ${DAY.format(new Date(photo.takenAt))}` : `Uploaded ${DAY.format(new Date(photo.uploadedAt))}`
+  return photo.takenAt ? `Taken ${formatDay(photo.takenAt.slice(0, 10))}` : `Uploaded ${formatEntryDate(photo.uploadedAt)}`
 }
 
 export function formatPhotoDay(iso: string) {
-  return DAY.format(new Date(iso))
+  return formatEntryDate(iso)
 }

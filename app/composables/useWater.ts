@@ -20,8 +20,8 @@ export function usePondFishEvents(pondId: MaybeRefOrGetter<string>) {
   return useFetch<{ events: PondFishEvent[] }>(() => `/api/ponds/${toValue(pondId)}/fish-events`, { key: `pond-fish-events-${toValue(pondId)}` })
 }
 
-/** The person's decimal mark; 'point' until the account setting exists. */
+/** The person's decimal mark (their account setting). */
 export function useDecimalMark() {
   const session = useSessionStore()
-  return computed<DecimalMark>(() => (session as unknown as { decimalMark?: DecimalMark }).decimalMark ?? 'point')
+  return computed<DecimalMark>(() => session.decimalMark)
 }

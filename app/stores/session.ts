@@ -1,11 +1,13 @@
 import { defineStore } from 'pinia'
 import type { CurrentUser, UnitSystem } from '#shared/types'
+import type { DecimalMark } from '#shared/utils/decimal'
 
 export const useSessionStore = defineStore('session', {
   state: () => ({ user: null as CurrentUser | null, loaded: false }),
   getters: {
     signedIn: state => state.user !== null,
     units: (state): UnitSystem => state.user?.units ?? 'metric',
+    decimalMark: (state): DecimalMark => state.user?.decimalMark ?? 'point',
   },
   actions: {
     async load() {
@@ -21,7 +23,7 @@ export const useSessionStore = defineStore('session', {
       this.user = await apiFetch<CurrentUser>('/api/auth/sign-in', { method: 'POST', body })
       return this.user
     },
-    async signUp(body: { name: string, email: string, password: string }) {
+    async signUp(body: { name: string, email: string, password: string, decimalMark?: DecimalMark }) {
       this.user = await apiFetch<CurrentUser>('/api/auth/sign-up', { method: 'POST', body })
       return this.user
     },
@@ -30,7 +32,7 @@ export const useSessionStore = defineStore('session', {
       this.user = null
       await clearNuxtData()
     },
-    async update(body: { name?: string, units?: UnitSystem }) {
+    async update(body: { name?: string, units?: UnitSystem, decimalMark?: DecimalMark }) {
       this.user = await apiFetch<CurrentUser>('/api/me', { method: 'PATCH', body })
     },
   },

@@ -1,5 +1,6 @@
 // Words the timeline shows for the stored values.
 import type { TimelineKind } from '#shared/utils/timeline-schemas'
+import { formatDate, formatDay as formatCalendarDay, formatTime, type DateStyle } from '#shared/utils/dates'
 
 export const KIND_LABELS: Record<TimelineKind, string> = {
   measurement: 'Weight & length',
@@ -81,16 +82,23 @@ export function conditionFactorLabel(lengthType: string | undefined) {
 /** Relative weight is only computed against the common carp standard (Bister et al. 2000, docs/references.md). */
 export const RELATIVE_WEIGHT_NOTE = 'against wild common carp, 100 = standard'
 
-/** "18 Apr 2023" in the reader's own calendar. */
-export function formatEntryDate(iso: string) {
-  return new Date(iso).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric' })
+// These read the reader's date style (useDateStyle) so every list and card prints dates alike; call
+// them while rendering or in setup. Outside a Nuxt context they fall back to the default style.
+function readerStyle(): DateStyle {
+  return tryUseNuxtApp() ? useDateStyleState().value : {}
 }
 
+/** "18 Apr 2023" (or "Apr 18, 2023") in the reader's locale and time zone. */
+export function formatEntryDate(iso: string) {
+  return formatDate(iso, readerStyle())
+}
+
+/** "14:05" in the reader's time zone; 24-hour unless their locale writes it otherwise. */
 export function formatEntryTime(iso: string) {
-  return new Date(iso).toLocaleTimeString('en-GB', { hour: '2-digit', minute: '2-digit' })
+  return formatTime(iso, readerStyle())
 }
 
 /** A stored calendar day (YYYY-MM-DD) shown the same way, without any time-zone shift. */
 export function formatDay(day: string) {
-  return new Date(`${day}T12:00:00Z`).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' })
+  return formatCalendarDay(day, readerStyle())
 }

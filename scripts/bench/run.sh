@@ -1,12 +1,13 @@
 #!/usr/bin/env bash
 # Benchmarks on loopback against the built server and a scratch database in the test cluster.
-# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | which-fish | all   (npm run bench = all)
+# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | which-fish | hostile-uploads | all   (npm run bench = all)
+# (FINTRAIL_TEST_PG_PORT moves the database cluster, as for the tests; BENCH_PORT the server.)
 set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/../lib.sh"
 cd "$ROOT"
 
-NAME="${1:?name a benchmark: fish-list, timeline, photos, archive, which-fish or all}"
-BENCHMARKS=(fish-list timeline photos archive which-fish)
+NAME="${1:?name a benchmark: fish-list, timeline, photos, archive, which-fish, hostile-uploads or all}"
+BENCHMARKS=(fish-list timeline photos archive which-fish hostile-uploads)
 if [ "$NAME" != all ] && [ ! -f "scripts/bench/$NAME.ts" ]; then
   echo "No benchmark named $NAME (scripts/bench/$NAME.ts); choose one of: ${BENCHMARKS[*]} or all" >&2
   exit 2

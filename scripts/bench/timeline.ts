@@ -1,5 +1,6 @@
 // A fish with 5,000 timeline entries and a pond of 500 weighed fish; times the timeline's first
-// page, the profile header, the growth series and the pond's fish table, each against its raw SQL.
+// page, the profile header, the growth series, a page of the health record and the pond's fish table,
+// each against its raw SQL.
 // Run: bash scripts/bench/run.sh timeline (or with DATABASE_URL of a migrated scratch database).
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
@@ -7,6 +8,7 @@ import { drizzle } from 'drizzle-orm/node-postgres'
 import pg from 'pg'
 import { fishListSql } from '../../server/db/queries/fish-list'
 import { growthSql, standingFactsSql, timelinePageSql } from '../../server/db/queries/timeline'
+import { recordPageSql } from '../../server/db/queries/record'
 import { BENCH_PASSWORD, load, report, signInCookie, startBenchServer, timeSql } from './support'
 
 const ENTRIES = 5000
@@ -76,6 +78,7 @@ async function main() {
     const { rows: [session] } = await pool.query('select id from sessions where user_id = $1', [userId])
     const db = drizzle(pool)
     const today = new Date().toISOString().slice(0, 10)
+    const asOf = new Date().toISOString()
     const query = (statement: Parameters<typeof db.dialect.sqlToQuery>[0]) => db.dialect.sqlToQuery(statement)
     // The statements each request makes: the session row, the access check, then the route's own query.
     const sessionSql = 'select s.id, s.created_at, s.last_seen_at, s.revoked_at, u.id, u.name, u.email, u.units from sessions s join users u on u.id = s.user_id where s.id = $1 limit 1'
@@ -85,6 +88,8 @@ async function main() {
       { label: `GET /api/fish/:id/facts (profile header, ${ENTRIES} entries)`, path: `/api/fish/${fishId}/facts`, statement: query(standingFactsSql(fishId, today, today)), access: fishAccessSql },
       { label: `GET /api/ponds/:id/fish (${POND_FISH} fish with K and weight-loss flag)`, path: `/api/ponds/${pondId}/fish`, statement: query(fishListSql(pondId, {})), access: 'select role from memberships where pond_id = $1 and user_id = $2 limit 1' },
       { label: `GET /api/fish/:id/growth (${ENTRIES * 2 / 8} measurements, markers)`, path: `/api/fish/${fishId}/growth`, statement: query(growthSql(fishId)), access: fishAccessSql },
+      // The health record reads the whole life in pages of 500, oldest first: the first page is the one that could grow.
+      { label: `GET /api/fish/:id/record/entries (first page of 500 of ${ENTRIES})`, path: `/api/fish/${fishId}/record/entries?asOf=${encodeURIComponent(asOf)}&limit=500`, statement: query(recordPageSql(fishId, { asOf, cursor: null, limit: 500 })), access: fishAccessSql },
     ]
     console.log(`Timeline benchmark on loopback, ${SECONDS} s per run (autocannon), SQL timed alone on one connection:`)
     for (const route of routes) {

@@ -10,7 +10,7 @@ export default defineEventHandler(async (event) => {
   const config = useRuntimeConfig(event)
   const [row] = await useDb().select({
     id: schema.sessions.id, createdAt: schema.sessions.createdAt, lastSeenAt: schema.sessions.lastSeenAt, revokedAt: schema.sessions.revokedAt,
-    user: { id: schema.users.id, name: schema.users.name, email: schema.users.email, units: schema.users.units },
+    user: { id: schema.users.id, name: schema.users.name, email: schema.users.email, units: schema.users.units, decimalMark: schema.users.decimalMark },
   }).from(schema.sessions).innerJoin(schema.users, eq(schema.users.id, schema.sessions.userId))
     .where(eq(schema.sessions.id, session.sessionId)).limit(1)
   const now = Date.now()

@@ -36,7 +36,7 @@ async function* people(pondId: string): AsyncGenerator<ArchiveRecord<'people'>> 
       union select p.uploader_id from photos p join fish f on f.id = p.fish_id where f.pond_id = $1
       union select d.given_by_id from treatment_doses d join timeline_entries e on e.id = d.entry_id join fish f on f.id = e.fish_id where f.pond_id = $1
     ) order by u.id`, [pondId])
-  for (const u of rows) yield { ref: u.id, name: u.name, email: u.email }
+  for (const u of rows) yield { ref: u.id, name: u.name, email: u.email, role: null }
 }
 
 async function* fishRecords(pondId: string): AsyncGenerator<ArchiveRecord<'fish'>> {

@@ -4,8 +4,9 @@ import { mkdir, rm } from 'node:fs/promises'
 import { dirname } from 'node:path'
 import { pipeline } from 'node:stream/promises'
 import { eq, sql } from 'drizzle-orm'
-import type { ZipFile } from 'yauzl'
-import type { ValidatedArchive } from './archive-validate'
+import type { DataFile } from '#shared/utils/archive-schema'
+import { archiveRecords, type OpenedArchive, type RecordOf } from '../workers/archive-read'
+import { entryStream } from '../workers/zip-reader'
 import { upgradeLegacyEntries } from '../db/upgrade-entries'
 
 const BATCH = 500
@@ -21,6 +22,14 @@ class IdMap {
 
   maybe(old: string | null) {
     return old === null ? null : this.get(old)
+  }
+}
+
+/** The records of one data file, which the upload worker has already checked whole. */
+async function* records<F extends DataFile>(archive: OpenedArchive, file: F): AsyncGenerator<RecordOf<F>> {
+  for await (const read of archiveRecords(archive, file)) {
+    if (read.problems) throw archiveRefused(`${read.problems[0]!.file} changed while it was being imported`)
+    yield read.record
   }
 }
 
@@ -42,7 +51,7 @@ async function inBatches<T>(records: AsyncIterable<T>, write: (batch: T[]) => Pr
  * account that cannot sign in until its owner resets the password by e-mail. Photo originals are copied
  * first and removed again if the transaction fails; their sizes are made after the commit.
  */
-export async function importArchive(zip: ZipFile, archive: ValidatedArchive, importerId: string) {
+export async function importArchive(archive: OpenedArchive, importerId: string) {
   const fishIds = new IdMap()
   const photoIds = new IdMap()
   const entryIds = new IdMap()
@@ -52,7 +61,8 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
   try {
     const pondId = await useDb().transaction(async (tx) => {
       await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'on', true)`)
-      for await (const person of archiveRecords(zip, archive, 'people')) {
+      for await (const person of records(archive, 'people')) {
+        if (!person.email) throw archiveRefused(`${person.name} has no e-mail address`)
         const [existing] = await tx.select({ id: schema.users.id }).from(schema.users).where(sql`lower(${schema.users.email}) = ${person.email.toLowerCase()}`).limit(1)
         if (existing) people.set(person.ref, existing.id)
         else {
@@ -66,7 +76,7 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
       const newPondId = created!.id
       await tx.insert(schema.memberships).values({ pondId: newPondId, userId: importerId, role: 'owner' })
 
-      await inBatches(archiveRecords(zip, archive, 'fish'), batch => tx.insert(schema.fish).values(batch.map(f => ({
+      await inBatches(records(archive, 'fish'), batch => tx.insert(schema.fish).values(batch.map(f => ({
         id: fishIds.get(f.id), pondId: newPondId, name: f.name, species: f.species, scientificName: f.scientificName, variety: f.variety, sex: f.sex,
         hatchYear: f.hatchYear, hatchYearEstimated: f.hatchYearEstimated, acquiredOn: f.acquiredOn, acquiredFrom: f.acquiredFrom,
         microchip: f.microchip, features: f.features, status: f.status, createdAt: new Date(f.createdAt), updatedAt: new Date(f.updatedAt),
@@ -74,12 +84,12 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
         throw conflictFromUniqueViolation(error) ? archiveRefused('a living fish in the archive has a microchip number that a living fish here already has', 409) : error
       })
 
-      for await (const photo of archiveRecords(zip, archive, 'photos')) {
+      for await (const photo of records(archive, 'photos')) {
         const id = photoIds.get(photo.id)
         const target = originalPath(id)
         await mkdir(dirname(target), { recursive: true })
         copied.push(target)
-        await pipeline(await entryStream(zip, archive.entries.get(photo.file)!), createWriteStream(target))
+        await pipeline(await entryStream(archive.zip, archive.byName.get(photo.file)!), createWriteStream(target))
         const uploadId = randomBytes(16).toString('hex')
         uploadIds.push(uploadId)
         await tx.insert(schema.photos).values({
@@ -88,17 +98,17 @@ export async function importArchive(zip: ZipFile, archive: ValidatedArchive, imp
           sha256: photo.sha256, createdAt: new Date(photo.createdAt),
         })
       }
-      for await (const f of archiveRecords(zip, archive, 'fish')) {
+      for await (const f of records(archive, 'fish')) {
         if (f.profilePhotoId) await tx.update(schema.fish).set({ profilePhotoId: photoIds.get(f.profilePhotoId) }).where(sql`${schema.fish.id} = ${fishIds.get(f.id)}`)
       }
 
-      await inBatches(archiveRecords(zip, archive, 'fish-edits'), batch => tx.insert(schema.fishEdits).values(batch.map(e => ({
+      await inBatches(records(archive, 'fish-edits'), batch => tx.insert(schema.fishEdits).values(batch.map(e => ({
         fishId: fishIds.get(e.fishId), userId: author(e.by), changes: e.changes, createdAt: new Date(e.createdAt),
       }))))
 
       // Entries go in the way the app writes them, so the record's guards (drizzle/0004) hold for imports too:
       // revision 1 first, then each amendment on top of its revision row, then "entered in error".
-      await inBatches(archiveRecords(zip, archive, 'timeline'), async (batch) => {
+      await inBatches(records(archive, 'timeline'), async (batch) => {
         await tx.insert(schema.timelineEntries).values(batch.map(e => ({
           id: entryIds.get(e.id), fishId: fishIds.get(e.fishId), pondId: newPondId, kind: e.kind, occurredAt: new Date(e.revisions[0]!.occurredAt), authorId: author(e.author),
           relatedFishId: fishIds.maybe(e.relatedFishId), linkedEntryId: entryIds.maybe(e.linkedEntryId), photoId: photoIds.maybe(e.photoId),

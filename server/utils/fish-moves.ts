@@ -1,6 +1,6 @@
 import type { H3Event } from 'h3'
 import { and, eq, isNull, ne, sql } from 'drizzle-orm'
-import type { SeparatedCompanion } from '#shared/utils/custody-schemas'
+import type { MemberLosingSight, SeparatedCompanion } from '#shared/utils/custody-schemas'
 import type { Tx } from './db'
 
 type FishRow = typeof schema.fish.$inferSelect
@@ -19,6 +19,17 @@ export async function companionsLeftBehind(db: { execute: Tx['execute'] }, fish:
       and f.id <> ${fish.id} and f.pond_id = ${fish.pondId} and f.status = 'alive'
     order by f.name`)
   return result.rows.map(r => ({ id: r.id, name: r.name }))
+}
+
+/** Members of the pond the fish leaves who are not members of the pond it goes to: they lose sight of it. */
+export async function membersLosingSight(db: { execute: Tx['execute'] }, fromPondId: string, toPondId: string): Promise<MemberLosingSight[]> {
+  const result = await db.execute<{ id: string, name: string, role: string }>(sql`
+    select u.id, u.name, m.role::text as role
+    from memberships m join users u on u.id = m.user_id
+    where m.pond_id = ${fromPondId}
+      and not exists (select 1 from memberships n where n.pond_id = ${toPondId} and n.user_id = m.user_id)
+    order by u.name`)
+  return result.rows.map(r => ({ id: r.id, name: r.name, role: r.role }))
 }
 
 export function separationNeedsConfirmation(fishName: string, companions: SeparatedCompanion[]) {

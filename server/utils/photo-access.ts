@@ -7,7 +7,6 @@ export type PhotoRow = typeof schema.photos.$inferSelect
 
 // Owners photograph their fish, keepers record photos, vets photograph at exams.
 export const PHOTO_ADD_ROLES: readonly PondRole[] = ['owner', 'keeper', 'vet']
-export const PROFILE_PHOTO_ROLES: readonly PondRole[] = ['owner', 'keeper']
 
 export function mayRemovePhoto(photo: Pick<PhotoRow, 'uploaderId'>, user: CurrentUser, role: PondRole) {
   return role === 'owner' || photo.uploaderId === user.id

@@ -56,7 +56,7 @@ async function purgeRemovedPhotos() {
   for (const photo of expired) {
     try {
       await useDb().transaction(async (tx) => {
-        await tx.update(schema.fish).set({ profilePhotoId: null }).where(eq(schema.fish.profilePhotoId, photo.id))
+        await tx.update(schema.fish).set({ profilePhotoId: null, profileFocusX: null, profileFocusY: null }).where(eq(schema.fish.profilePhotoId, photo.id))
         await tx.delete(schema.photos).where(eq(schema.photos.id, photo.id))
       })
     }

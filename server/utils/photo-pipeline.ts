@@ -156,6 +156,18 @@ async function livePhotoWithBytes(fishId: string, sha256: string) {
   return row
 }
 
+/**
+ * The same photo uploaded again keeps the caption typed this time: it fills an empty caption, or is
+ * added after a different one, so words written at the pond side are never dropped.
+ */
+async function keepTypedCaption(photo: PhotoRow, typed: unknown): Promise<PhotoRow> {
+  const words = String(typed ?? '').trim()
+  if (!words || photo.caption.includes(words)) return photo
+  const caption = (photo.caption ? `${photo.caption} — ${words}` : words).slice(0, 300)
+  const [updated] = await useDb().update(schema.photos).set({ caption, updatedAt: new Date() }).where(eq(schema.photos.id, photo.id)).returning()
+  return updated ?? photo
+}
+
 function isUniqueViolation(error: unknown) {
   const cause = (error as { cause?: unknown })?.cause ?? error
   return (cause as { code?: string })?.code === '23505'
@@ -181,7 +193,7 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
       const duplicate = await livePhotoWithBytes(fishId, sha256)
       if (duplicate) {
         await discardUpload(uploadId)
-        return { photo: duplicate, duplicate: true }
+        return { photo: await keepTypedCaption(duplicate, upload.metadata.caption), duplicate: true }
       }
       try {
         [row] = await useDb().insert(schema.photos).values({
@@ -206,7 +218,7 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
         const winner = await livePhotoWithBytes(fishId, sha256)
         if (!winner) throw error
         await discardUpload(uploadId)
-        return { photo: winner, duplicate: true }
+        return { photo: await keepTypedCaption(winner, upload.metadata.caption), duplicate: true }
       }
       // processPhoto links the original first; a write that fails there marks the photo failed, not pending.
       return { photo: await processPhoto(row!), duplicate: false }
@@ -239,7 +251,7 @@ export async function replaceProfilePhoto(fishId: string, removedPhotoId: string
     .where(and(eq(schema.photos.fishId, fishId), eq(schema.photos.state, 'ready'), isNull(schema.photos.removedAt)))
     .orderBy(sql`(${schema.photos.view} = 'top') desc`, desc(sql`coalesce(${schema.photos.takenAt}, ${schema.photos.createdAt})`))
     .limit(1)
-  await useDb().update(schema.fish).set({ profilePhotoId: next?.id ?? null })
+  await useDb().update(schema.fish).set({ profilePhotoId: next?.id ?? null, profileFocusX: null, profileFocusY: null })
     .where(and(eq(schema.fish.id, fishId), eq(schema.fish.profilePhotoId, removedPhotoId)))
 }
 

@@ -39,6 +39,6 @@ export function requireUser(event: H3Event): CurrentUser {
   return user
 }
 
-export function publicUser(user: { id: string, name: string, email: string, units: 'metric' | 'us' }): CurrentUser {
-  return { id: user.id, name: user.name, email: user.email, units: user.units }
+export function publicUser(user: CurrentUser): CurrentUser {
+  return { id: user.id, name: user.name, email: user.email, units: user.units, decimalMark: user.decimalMark }
 }

@@ -1,27 +1,12 @@
 import type { H3Event } from 'h3'
-import Papa from 'papaparse'
-import readXlsxFile from 'read-excel-file/node'
-import { IMPORT_MAX_BYTES, IMPORT_MAX_COLUMNS, IMPORT_MAX_ROWS, type Cell } from '#shared/utils/measurement-import'
+import { IMPORT_MAX_BYTES } from '#shared/utils/measurement-import'
+import type { Spreadsheet } from '../workers/spreadsheet-read'
 
-export interface SheetRow { rowNumber: number, cells: Record<string, Cell> }
-
-export interface Spreadsheet {
-  fileName: string
-  format: 'csv' | 'xlsx'
-  sheets: string[]
-  sheet: string | null
-  columns: string[]
-  rows: SheetRow[]
-  /** Lines with nothing in them: not rows, but counted so that nothing vanishes unmentioned. */
-  blankLines: number
-}
+export type { SheetRow, Spreadsheet } from '../workers/spreadsheet-read'
 
 function refuse(statusCode: number, message: string, field = 'file') {
   return createError({ statusCode, statusMessage: statusCode === 413 ? 'Too large' : 'Invalid input', message, data: { fieldErrors: { [field]: [message] } } })
 }
-
-// An .xlsx is a zip of XML: a 10 MB file may unpack to no more than this.
-const XLSX_LIMITS = { maxEntries: 2_000, maxEntryBytes: 100 * 1024 * 1024, maxTotalBytes: 200 * 1024 * 1024 }
 
 /** The uploaded file and the other form fields, read once; refused early when the body is larger than a file may be. */
 export async function readImportForm(event: H3Event) {
@@ -36,75 +21,11 @@ export async function readImportForm(event: H3Event) {
   return { file: { name: (file.filename || 'spreadsheet').slice(0, 255), type: file.type ?? '', data: file.data }, fields }
 }
 
-/** Unique, non-empty column names from the header row: the mapping refers to columns by these names. */
-function columnNames(header: Cell[]): string[] {
-  const seen = new Map<string, number>()
-  return header.map((cell, i) => {
-    const base = (cell == null ? '' : String(cell).trim()) || `Column ${i + 1}`
-    const n = (seen.get(base) ?? 0) + 1
-    seen.set(base, n)
-    return n === 1 ? base : `${base} (${n})`
-  })
-}
-
-function toRows(table: Cell[][], firstRowNumber: number) {
-  const [header = [], ...body] = table
-  const width = Math.max(header.length, ...body.slice(0, 1000).map(r => r.length))
-  if (width > IMPORT_MAX_COLUMNS) throw refuse(400, `The sheet has ${width} columns; at most ${IMPORT_MAX_COLUMNS} are read`)
-  const columns = columnNames(Array.from({ length: width }, (_, i) => header[i] ?? null))
-  if (body.length > IMPORT_MAX_ROWS) throw refuse(413, `The sheet has ${body.length} rows; at most ${IMPORT_MAX_ROWS} are read at once. Split it into several files.`)
-  let blankLines = 0
-  const rows: SheetRow[] = []
-  body.forEach((values, i) => {
-    if (values.every(v => v == null || String(v).trim() === '')) {
-      blankLines++
-      return
-    }
-    rows.push({ rowNumber: firstRowNumber + 1 + i, cells: Object.fromEntries(columns.map((c, j) => [c, values[j] ?? null])) })
-  })
-  return { columns, rows, blankLines }
-}
-
-function readCsv(data: Buffer) {
-  const text = data.toString('utf8').replace(/^\uFEFF/, '')
-  if (text.includes('\uFFFD')) throw refuse(400, 'The file is not UTF-8 text: save it from the spreadsheet as "CSV UTF-8"')
-  const parsed = Papa.parse<string[]>(text, { skipEmptyLines: false })
-  const fatal = parsed.errors.find(e => e.type === 'Quotes')
-  if (fatal) throw refuse(400, `Row ${(fatal.row ?? 0) + 1} has an unclosed quote: ${fatal.message}`)
-  // A file ending in a line break gives one empty last line: that is not a row of the sheet.
-  const table = parsed.data.at(-1)?.length === 1 && parsed.data.at(-1)![0] === '' ? parsed.data.slice(0, -1) : parsed.data
-  return toRows(table, 1)
-}
-
-async function readXlsx(data: Buffer, sheetName?: string) {
-  try {
-    checkZip(data, XLSX_LIMITS)
-  }
-  catch (error) {
-    if (error instanceof ZipRefusal) throw refuse(400, `This .xlsx file is refused: ${error.message}`)
-    throw error
-  }
-  let workbook: Awaited<ReturnType<typeof readXlsxFile>>
-  try {
-    workbook = await readXlsxFile(data)
-  }
-  catch {
-    throw refuse(400, 'The file could not be read as an Excel workbook (.xlsx)')
-  }
-  const sheets = workbook.map(w => w.sheet)
-  const worksheet = sheetName ? workbook.find(w => w.sheet === sheetName) : workbook[0]
-  if (!worksheet) throw refuse(400, sheetName ? `No sheet named "${sheetName}" (the workbook has ${sheets.join(', ')})` : 'The workbook has no sheets', sheetName ? 'sheet' : 'file')
-  return { ...toRows(worksheet.data as Cell[][], 1), sheets, sheet: worksheet.sheet }
-}
-
-/** A .csv or .xlsx file as named columns and numbered rows (row 1 is the header, as the spreadsheet shows it). */
-export async function readSpreadsheet(file: { name: string, type: string, data: Buffer }, sheet?: string): Promise<Spreadsheet> {
+/**
+ * A .csv or .xlsx file as named columns and numbered rows (row 1 is the header), parsed in the upload worker;
+ * with `sampleRows`, only the first rows come back (and `rowCount` tells how many there are).
+ */
+export async function readSpreadsheet(file: { name: string, data: Buffer }, sheet?: string, sampleRows?: number): Promise<Spreadsheet> {
   if (file.data.length > IMPORT_MAX_BYTES) throw refuse(413, `The file is larger than ${IMPORT_MAX_BYTES / 1024 / 1024} MB`)
-  const isZip = file.data.subarray(0, 4).equals(Buffer.from([0x50, 0x4B, 0x03, 0x04]))
-  if (/\.xlsx$/i.test(file.name) || isZip) {
-    if (!isZip) throw refuse(400, 'This .xlsx file is not a workbook (is it an older .xls? Save it as .xlsx or .csv)')
-    return { fileName: file.name, format: 'xlsx', ...await readXlsx(file.data, sheet) }
-  }
-  if (/\.(xls|ods|numbers)$/i.test(file.name)) throw refuse(415, 'Save the sheet as .xlsx or .csv first: older .xls, .ods and .numbers files are not read')
-  return { fileName: file.name, format: 'csv', sheets: [], sheet: null, ...readCsv(file.data) }
+  return parseSpreadsheet(file, sheet, sampleRows)
 }

@@ -1,7 +1,7 @@
 import type { H3Event } from 'h3'
 import { and, eq, ne, sql } from 'drizzle-orm'
 import type { z } from 'zod'
-import type { FieldErrors, PondRole } from '#shared/types'
+import type { CurrentUser, FieldErrors, PondRole } from '#shared/types'
 import type { TimelineEntryView } from '#shared/types/timeline'
 import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
 import { amendDecision, ENTRY_RULES, writeDecision } from '#shared/utils/timeline-rules'
@@ -62,7 +62,7 @@ export function validateEntryData<K extends EntryKind>(kind: K, data: unknown): 
 }
 
 export interface EntryAccess {
-  user: { id: string, name: string }
+  user: CurrentUser
   role: PondRole
   fish: FishRow
   entry: EntryRow
@@ -261,10 +261,10 @@ export function encodeCursor(row: { cursor_at: string, id: string }) {
   return Buffer.from(`${row.cursor_at}|${row.id}`).toString('base64url')
 }
 
-export function decodeCursor(cursor: string | undefined) {
+export function decodeCursor(cursor: string | undefined, field = 'before') {
   if (!cursor) return null
   const [at, id] = Buffer.from(cursor, 'base64url').toString('utf8').split('|')
   const wellFormed = at && id && /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{6}Z$/.test(at) && /^[0-9a-f-]{36}$/i.test(id)
-  if (!wellFormed) throw badEntry({ before: ['Not a page marker from this timeline'] })
+  if (!wellFormed) throw badEntry({ [field]: ['Not a page marker from this timeline'] })
   return { at, id }
 }

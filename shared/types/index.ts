@@ -1,3 +1,4 @@
+import type { DecimalMark } from '../utils/decimal'
 import type { PondVolumeMeasurement } from '../utils/pond-volume-schemas'
 
 export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
@@ -18,6 +19,8 @@ export interface CurrentUser {
   name: string
   email: string
   units: UnitSystem
+  /** How this person writes decimals; every number they type is read with it. */
+  decimalMark: DecimalMark
 }
 
 export interface PondSummary {
@@ -59,6 +62,8 @@ export interface FishListItem {
   microchip: string | null
   status: FishStatus
   profilePhotoId: string | null
+  /** Where the fish's head is on its profile photo, in percent across and down; null keeps the centre. */
+  profileFocus: PhotoFocus | null
   latestWeightG: number | null
   latestLengthCm: number | null
   latestConditionK: number | null
@@ -85,6 +90,7 @@ export interface FishProfile {
   features: string
   status: FishStatus
   profilePhotoId: string | null
+  profileFocus: PhotoFocus | null
   version: number
   createdAt: string
   updatedAt: string
@@ -130,6 +136,8 @@ export interface FishPhotos {
   canUpload: boolean
   canSetProfile: boolean
 }
+
+export interface PhotoFocus { x: number, y: number }
 
 /** Where the e-mail announcing an offer stands, shown to its sender with a resend button. */
 export interface OfferMailState {

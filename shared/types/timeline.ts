@@ -109,8 +109,12 @@ export interface FishGrowth {
 }
 
 export interface LengthWeightSeries {
+  /** The fish's species as the app names it (koi, goldfish, other). */
   species: string
-  fit: { a: number, b: number, r2: number, n: number } | null
+  /** Fits are grouped by scientific name: two "other" species never share a curve. */
+  scientificName: string
+  /** Fitted on each fish's latest weighing (n = number of fish); b outside 2.5–3.5 is flagged (Froese 2006). */
+  fit: { a: number, b: number, r2: number, n: number, bOutsideRange: boolean } | null
   fish: { id: string, name: string, points: { lengthCm: number, weightG: number, at: string }[] }[]
 }
 

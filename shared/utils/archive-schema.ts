@@ -3,7 +3,10 @@
 // spreadsheets, and every photo original under photos/. Ids inside an archive are references between its
 // records; an import gives every record a new id.
 import { z } from 'zod'
-import { STORED_TIMELINE_KINDS } from './timeline-schemas'
+import { POND_ROLES } from '../types'
+import { fishCreateSchema } from './fish-schemas'
+import { ENTRY_DATA_SCHEMAS, STORED_TIMELINE_KINDS, type EntryKind } from './timeline-schemas'
+import { writeDecision } from './timeline-rules'
 
 export const ARCHIVE_FORMAT = 'fintrail-pond-archive'
 export const ARCHIVE_SCHEMA_VERSION = 1
@@ -20,7 +23,12 @@ export const ARCHIVE_LIMITS = {
   /** Unpacked size over packed size of one entry beyond which it is treated as a zip bomb. */
   compressionRatio: 200,
   entries: 200_000,
-  lineBytes: 1024 * 1024,
+  /** manifest.json: counts, checksums and the pond; a few kB for a real pond, so 1 MB is generous. */
+  manifestBytes: 1024 * 1024,
+  /** One JSON Lines record: an entry with every revision of a long lab result stays well under this. */
+  lineBytes: 256 * 1024,
+  /** Problems listed when records fail their schemas (the import is refused whole either way). */
+  problemsListed: 20,
 } as const
 
 export const DATA_FILES = ['people', 'fish', 'fish-edits', 'timeline', 'photos'] as const
@@ -40,13 +48,27 @@ export const manifestSchema = z.strictObject({
 })
 export type ArchiveManifest = z.infer<typeof manifestSchema>
 
-export const personRecord = z.strictObject({ ref: id, name: text(120).min(1), email: text(254).min(3) })
+// The people who wrote the records, kept as text on import: never matched to, or made into, an account here.
+// `role` is their role in the pond when the archive was made; older archives do not carry it.
+export const personRecord = z.strictObject({
+  ref: id,
+  name: z.string().trim().min(1, 'Give the name').max(120, 'At most 120 characters'),
+  email: z.email('Not an e-mail address').max(254).nullable(),
+  role: z.enum(POND_ROLES).nullable().default(null),
+})
 
 export const fishRecord = z.strictObject({
   id, name: text(80).min(1), species: z.enum(['koi', 'goldfish', 'other']), scientificName: text(120), variety: text(80),
   sex: z.enum(['unknown', 'male', 'female']), hatchYear: z.number().int().min(1800).max(3000).nullable(), hatchYearEstimated: z.boolean(),
   acquiredOn: z.iso.date().nullable(), acquiredFrom: text(160), microchip: z.string().regex(/^\d{15}$/).nullable(), features: text(2000),
   status: z.enum(['alive', 'deceased', 'rehomed']), profilePhotoId: id.nullable(), createdAt: isoTime, updatedAt: isoTime,
+}).superRefine((f, ctx) => {
+  // The same rules as a fish created here (name, microchip check digits, years, dates).
+  const live = fishCreateSchema.safeParse({
+    name: f.name, species: f.species, scientificName: f.scientificName, variety: f.variety, sex: f.sex, hatchYear: f.hatchYear,
+    acquiredOn: f.acquiredOn, acquiredFrom: f.acquiredFrom, microchip: f.microchip, features: f.features,
+  })
+  if (!live.success) for (const issue of live.error.issues) ctx.addIssue({ code: 'custom', path: issue.path, message: issue.message })
 })
 
 export const fishEditRecord = z.strictObject({
@@ -86,3 +108,28 @@ export const RECORD_SCHEMAS = {
 } as const satisfies Record<DataFile, z.ZodType>
 
 export type ArchiveRecord<F extends DataFile> = z.infer<typeof RECORD_SCHEMAS[F]>
+
+// Moves and owner changes are written by the app's custody work, not typed in a form: short flat facts.
+const custodyData = z.record(z.string().max(60), z.union([z.string().max(500), z.number(), z.boolean(), z.null()]))
+  .refine(data => Object.keys(data).length <= 40, 'At most 40 fields')
+
+/**
+ * An entry's data checked as a live write checks it: by its kind's schema, and against the role rules
+ * when the archive says which role its author had. Answers the checked data (with a live write's
+ * defaults) or the problems, each with the field it is about.
+ */
+export function checkEntryData(kind: string, data: unknown, authorRole: typeof POND_ROLES[number] | null):
+{ ok: true, data: Record<string, unknown> } | { ok: false, problems: { field: string, message: string }[] } {
+  if (kind === 'move' || kind === 'owner_change') {
+    const parsed = custodyData.safeParse(data)
+    return parsed.success ? { ok: true, data: parsed.data } : { ok: false, problems: parsed.error.issues.map(i => ({ field: ['data', ...i.path].join('.'), message: i.message })) }
+  }
+  if (!(kind in ENTRY_DATA_SCHEMAS)) return { ok: false, problems: [{ field: 'kind', message: `"${kind}" entries are not written through the timeline` }] }
+  const parsed = ENTRY_DATA_SCHEMAS[kind as EntryKind].safeParse(data)
+  if (!parsed.success) return { ok: false, problems: parsed.error.issues.map(i => ({ field: ['data', ...i.path].join('.'), message: i.message })) }
+  if (authorRole) {
+    const decision = writeDecision(authorRole, kind as EntryKind, parsed.data as Record<string, unknown>)
+    if (!decision.allowed) return { ok: false, problems: [{ field: decision.field ?? 'author', message: `${decision.message} (the archive says its author was a ${authorRole})` }] }
+  }
+  return { ok: true, data: parsed.data as Record<string, unknown> }
+}

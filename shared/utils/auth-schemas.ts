@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { isCommonPassword } from './common-passwords'
+import { DECIMAL_MARKS } from './decimal'
 
 export const PASSWORD_MIN_LENGTH = 10
 
@@ -14,6 +15,8 @@ export const signUpSchema = z.strictObject({
   name: z.string().trim().min(1, 'Enter your name').max(120, 'At most 120 characters'),
   email: emailSchema,
   password: newPasswordSchema,
+  // The sign-up page sends the mark of the browser's locale; without it a point is assumed.
+  decimalMark: z.enum(DECIMAL_MARKS, 'Choose point or comma').optional(),
 })
 
 export const signInSchema = z.strictObject({
@@ -36,4 +39,5 @@ export const resetPasswordSchema = z.strictObject({
 export const accountUpdateSchema = z.strictObject({
   name: z.string().trim().min(1, 'Enter your name').max(120, 'At most 120 characters').optional(),
   units: z.enum(['metric', 'us']).optional(),
+  decimalMark: z.enum(DECIMAL_MARKS, 'Choose point or comma').optional(),
 })

@@ -79,6 +79,33 @@ export function fitLengthWeight(points: readonly LengthWeightPoint[]): LengthWei
   return { a, b, r2, n }
 }
 
+/** Froese 2006 (J. Appl. Ichthyol. 22:241-253): b of a length–weight relationship usually lies between 2.5 and 3.5. */
+export const EXPECTED_B_RANGE = { low: 2.5, high: 3.5 } as const
+
+/** Whether a fitted b falls outside Froese's 2.5–3.5, which usually means mixed-up data rather than odd fish. */
+export function isUnusualB(b: number): boolean {
+  return !(b >= EXPECTED_B_RANGE.low && b <= EXPECTED_B_RANGE.high)
+}
+
+export interface DatedLengthWeightPoint extends LengthWeightPoint {
+  at: string
+}
+
+/**
+ * The pond's length–weight fit with one point per fish, its latest weighing with a length: pooling every
+ * weighing would let a fish weighed often outweigh the rest and would fit one fish's growth, not the pond.
+ * Returns the fit (or null, as fitLengthWeight) and whether b is outside 2.5–3.5 (Froese 2006).
+ */
+export function fitLatestPerFish(fish: readonly { points: readonly DatedLengthWeightPoint[] }[]): (LengthWeightFit & { bOutsideRange: boolean }) | null {
+  const latest = fish.flatMap((one) => {
+    const usable = one.points.filter(p => isPositiveNumber(p.lengthCm) && isPositiveNumber(p.weightG) && Number.isFinite(Date.parse(p.at)))
+    const last = usable.reduce<DatedLengthWeightPoint | undefined>((best, p) => (!best || Date.parse(p.at) >= Date.parse(best.at) ? p : best), undefined)
+    return last ? [last] : []
+  })
+  const fit = fitLengthWeight(latest)
+  return fit ? { ...fit, bOutsideRange: isUnusualB(fit.b) } : null
+}
+
 /** Bister et al. 2000 (N. Am. J. Fish. Manage. 20:570-574), common carp, TL in mm, Ws in g. */
 const COMMON_CARP_STANDARD_WEIGHT = {
   intercept: -4.639,

@@ -7,18 +7,22 @@ export const HANDOVER_MEMBERS_OPTIONS = ['stay', 'read_only', 'leave'] as const
 export type HandoverMembersOption = typeof HANDOVER_MEMBERS_OPTIONS[number]
 
 /** What each option does, in the words the offer form and the acceptance page show. */
-export const HANDOVER_MEMBERS_WORDS: Record<HandoverMembersOption, { label: string, detail: string }> = {
+// `detail` speaks to the owner who offers the pond; `forRecipient` to the person who would receive it.
+export const HANDOVER_MEMBERS_WORDS: Record<HandoverMembersOption, { label: string, detail: string, forRecipient: (sender: string) => string }> = {
   stay: {
     label: 'They stay',
     detail: 'Keepers and vets keep their roles; you and any other owner stay on as keepers.',
+    forRecipient: sender => `The keepers and vets of the pond keep their roles, and ${sender} (with any other owner) stays on as a keeper. As the owner you can change anyone's role afterwards.`,
   },
   read_only: {
     label: 'They become read-only',
     detail: 'Everyone now in the pond, you included, can still see its whole history but change nothing.',
+    forRecipient: sender => `Everyone now in the pond, ${sender} included, can still see its whole history but can change nothing. As the owner you decide later whether anyone gets a role back.`,
   },
   leave: {
     label: 'They leave',
     detail: 'Everyone now in the pond, you included, loses access when the new owner accepts.',
+    forRecipient: sender => `Everyone now in the pond, ${sender} included, loses access when you accept: the pond is yours alone until you invite people.`,
   },
 }
 
@@ -57,6 +61,20 @@ export const memberReadOnlySchema = z.strictObject({ readOnly: z.boolean('Yes or
 // ---- moving and rehoming a fish -------------------------------------------------------------
 
 const confirmSeparation = z.boolean('Yes or no').optional().default(false)
+
+/** Someone who can see the fish now and will not once it has moved. */
+export interface MemberLosingSight { id: string, name: string, role: string }
+
+/** What moving a fish to a pond would change, shown before the owner confirms. */
+export interface FishMovePreview {
+  toPond: { id: string, name: string }
+  losingSight: MemberLosingSight[]
+  companions: SeparatedCompanion[]
+}
+
+export const fishMovePreviewQuery = z.strictObject({
+  toPondId: z.uuid('Choose one of your ponds'),
+})
 
 export const fishMoveSchema = z.strictObject({
   toPondId: z.uuid('Choose one of your ponds'),

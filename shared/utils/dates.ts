@@ -55,3 +55,39 @@ export function formatMonth(value: string | number | Date, style: DateStyle = {}
   const date = asDate(value)
   return Number.isNaN(date.getTime()) ? '' : formatter(style, { month: 'short', year: 'numeric' }).format(date)
 }
+
+/** The language the reader asked for first (Accept-Language, by weight) that Intl can format dates in. */
+export function localeFromAcceptLanguage(header: string | null | undefined, fallback = 'en-GB'): string {
+  const wanted = String(header ?? '').split(',')
+    .map((part, index) => {
+      const [tag = '', ...params] = part.trim().split(';')
+      const q = Number(params.map(p => p.trim()).find(p => p.startsWith('q='))?.slice(2) ?? 1)
+      return { tag: tag.trim(), q: Number.isFinite(q) ? q : 0, index }
+    })
+    .filter(w => w.tag && w.tag !== '*' && w.q > 0)
+    .sort((a, b) => b.q - a.q || a.index - b.index)
+  for (const { tag } of wanted) {
+    try {
+      const [supported] = Intl.DateTimeFormat.supportedLocalesOf(tag)
+      if (supported) return supported
+    }
+    catch {
+      // A malformed tag is skipped, not an error: the header comes from any client.
+    }
+  }
+  return fallback
+}
+
+/** An IANA time zone name Intl knows ("Europe/London"), else null. */
+export function knownTimeZone(name: unknown): string | null {
+  if (typeof name !== 'string' || !name || name.length > 64) return null
+  try {
+    return new Intl.DateTimeFormat('en', { timeZone: name }).resolvedOptions().timeZone
+  }
+  catch {
+    return null
+  }
+}
+
+/** The cookie in which the browser tells the server its time zone, so the server render prints the reader's dates. */
+export const TIME_ZONE_COOKIE = 'fintrail_tz'

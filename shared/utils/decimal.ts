@@ -55,3 +55,34 @@ export function parseDecimal(text: string, decimalMark: DecimalMark): number | n
   const reading = readDecimal(text, decimalMark)
   return reading.ok ? reading.value : null
 }
+
+/**
+ * A number written back the way the person reads numbers: "1,250" / "12.5" with a point,
+ * "1.250" / "12,5" with a comma. Thousands are grouped in threes, as the parser accepts them.
+ */
+export function formatDecimal(value: number, decimalMark: DecimalMark, maximumFractionDigits = 3): string {
+  if (!Number.isFinite(value)) return ''
+  const pointText = new Intl.NumberFormat('en-US', { maximumFractionDigits, useGrouping: true }).format(value)
+  if (decimalMark === 'point') return pointText
+  return pointText.replace(/[.,]/g, symbol => (symbol === '.' ? ',' : '.'))
+}
+
+/** The decimal mark a browser locale writes ("de-DE" → comma, "en-US" → point); point when unknown. */
+export function decimalMarkOfLocale(locale: string | undefined): DecimalMark {
+  try {
+    const parts = new Intl.NumberFormat(locale || 'en-US').formatToParts(1.5)
+    return parts.find(part => part.type === 'decimal')?.value === ',' ? 'comma' : 'point'
+  }
+  catch {
+    return 'point'
+  }
+}
+
+/**
+ * A typed field into what the schema receives: nothing for an empty field, the number, or NaN when
+ * the text is refused, so the schema refuses it too and nothing misread is ever sent.
+ */
+export function typedDecimal(text: string | null | undefined, decimalMark: DecimalMark): number | undefined {
+  if (String(text ?? '').trim() === '') return undefined
+  return parseDecimal(String(text), decimalMark) ?? Number.NaN
+}

@@ -2,8 +2,10 @@
 // into a measurement or a plain reason why not. Nothing is guessed: a date is read in the format the
 // person chose, a number with the decimal separator they chose, a unit only from where they said it is.
 import { z } from 'zod'
-import { LENGTH_TYPES, measurementData, type LengthType } from './timeline-schemas'
-import { convert } from './units'
+import { LENGTH_TYPES, MEASUREMENT_LIMITS, measurementData, type LengthType } from './timeline-schemas'
+import { convert, formatLength, formatMass } from './units'
+import type { PlausibilityStyle, PlausibilityWarning } from './plausibility'
+import { readDecimal, type DecimalMark } from './decimal'
 
 export const IMPORT_MAX_BYTES = 10 * 1024 * 1024
 export const IMPORT_MAX_ROWS = 100_000
@@ -29,7 +31,8 @@ export const importMappingSchema = z.strictObject({
   lengthUnit: z.enum(LENGTH_UNITS, 'Choose cm, mm, m or in').optional(),
   lengthUnitColumn: column('Choose the length unit column').optional(),
   lengthType: z.enum(LENGTH_TYPES, 'Choose total, fork or standard length').default('total'),
-  decimalSeparator: z.enum(['.', ','], 'Choose . or ,').default('.'),
+  // Left out, the importer's own decimal mark (their account setting) is used.
+  decimalSeparator: z.enum(['.', ','], 'Choose . or ,').optional(),
   sheet: z.string().trim().max(200).optional(),
 }).superRefine((m, ctx) => {
   if (!m.weightColumn && !m.lengthColumn) ctx.addIssue({ code: 'custom', path: ['weightColumn'], message: 'Choose a weight column, a length column or both' })
@@ -40,6 +43,39 @@ export const importMappingSchema = z.strictObject({
 export type ImportMapping = z.output<typeof importMappingSchema>
 
 export const IMPORT_PROBLEMS = ['bad_date', 'unknown_fish', 'ambiguous_fish', 'unknown_unit', 'missing_unit', 'not_a_number', 'out_of_range', 'no_measurement'] as const
+
+/** The unit a column header names: "Weight (g)", "kg", "Length in cm", "TL (in)"; undefined when it names none. */
+export function unitFromHeader(header: string, quantity: 'weight' | 'length'): string | undefined {
+  const text = header.toLowerCase()
+  if (quantity === 'weight') {
+    if (/\bkg\b|\bkgs\b|kilo/.test(text)) return 'kg'
+    if (/\blbs?\b|pound/.test(text)) return 'lb'
+    if (/\boz\b|ounce/.test(text)) return 'oz'
+    if (/\(g\)|\[g\]|\bgrams?\b|\bin g$|\bg$/.test(text)) return 'g'
+    return undefined
+  }
+  if (/\bmm\b|millimet/.test(text)) return 'mm'
+  if (/\bcm\b|centimet/.test(text)) return 'cm'
+  // "in" is also a word ("length in cm"), so only as a unit of its own: "(in)", "[in]", "inches", a trailing "in".
+  if (/\(in\.?\)|\[in\]|\binch(es)?\b|\bin\.?$|"/.test(text)) return 'in'
+  if (/\(m\)|\[m\]|\bmet(re|er)s?\b/.test(text)) return 'm'
+  return undefined
+}
+
+/**
+ * First units for the mapping: the column header's unit, else the importer's unit system (g and cm, or
+ * lb and in). A unit column, when there is one, is suggested instead, so no fixed unit is offered then.
+ */
+export function suggestUnits(mapping: Partial<ImportMapping>, unitSystem: 'metric' | 'us'): Pick<ImportMapping, 'weightUnit' | 'lengthUnit'> {
+  const out: Pick<ImportMapping, 'weightUnit' | 'lengthUnit'> = {}
+  if (mapping.weightColumn && !mapping.weightUnitColumn) {
+    out.weightUnit = (unitFromHeader(mapping.weightColumn, 'weight') ?? (unitSystem === 'us' ? 'lb' : 'g')) as ImportMapping['weightUnit']
+  }
+  if (mapping.lengthColumn && !mapping.lengthUnitColumn) {
+    out.lengthUnit = (unitFromHeader(mapping.lengthColumn, 'length') ?? (unitSystem === 'us' ? 'in' : 'cm')) as ImportMapping['lengthUnit']
+  }
+  return out
+}
 export type ImportProblem = typeof IMPORT_PROBLEMS[number]
 
 export type Cell = string | number | boolean | Date | null | undefined
@@ -139,11 +175,11 @@ function unitOf(word: string, allowed: readonly string[]): string | null {
   return unit && allowed.includes(unit) ? unit : null
 }
 
-function readNumber(text: string, decimal: '.' | ','): number | null {
-  const other = decimal === '.' ? ',' : '.'
-  if (text.includes(other)) return null
-  const normal = decimal === ',' ? text.replace(',', '.') : text
-  return /^[+-]?(\d+(\.\d*)?|\.\d+)$/.test(normal) ? Number(normal) : null
+export const markOfSeparator = (decimal: '.' | ','): DecimalMark => (decimal === ',' ? 'comma' : 'point')
+
+/** Cell text through the one shared parser; the refusal says how to write the number. */
+function readNumber(text: string, decimal: '.' | ','): { ok: true, value: number } | { ok: false, message: string } {
+  return readDecimal(text, markOfSeparator(decimal))
 }
 
 /**
@@ -152,8 +188,9 @@ function readNumber(text: string, decimal: '.' | ','): number | null {
  * that contradicts the unit column is refused rather than one of them believed.
  */
 export function readAmount(cell: Cell, options: { base: 'g' | 'cm', allowed: readonly string[], fixedUnit?: string, unitCell?: Cell, decimal: '.' | ',' }): { ok: true, value: number | undefined, entered?: string } | RowRefusal {
-  if (typeof cell === 'number') cell = String(cell).replace('.', options.decimal)
-  const text = cellText(cell)
+  // A number cell of a workbook is already a number: nothing to read, nothing to misread.
+  const numeric = typeof cell === 'number' && Number.isFinite(cell) ? cell : undefined
+  const text = numeric !== undefined ? String(numeric) : cellText(cell)
   if (!text) return { ok: true, value: undefined }
   const what = options.base === 'g' ? 'weight' : 'length'
   const unitColumnText = cellText(options.unitCell)
@@ -165,14 +202,15 @@ export function readAmount(cell: Cell, options: { base: 'g' | 'cm', allowed: rea
   const compound = options.base === 'g' ? /^(?<lb>[\d.,]+)\s*(lb|lbs|pounds?)\.?\s+(?<oz>[\d.,]+)\s*(oz|ounces?)\.?$/i.exec(text)?.groups : undefined
   if (compound) {
     const [lb, oz] = [readNumber(compound.lb!, options.decimal), readNumber(compound.oz!, options.decimal)]
-    if (lb === null || oz === null) return fail('not_a_number', `"${text}" is not a ${what} we can read`)
+    if (!lb.ok || !oz.ok) return fail('not_a_number', `"${text}" is not a ${what} we can read. ${(!lb.ok ? lb : oz as { message: string }).message}`)
     if (columnUnit) return fail('unknown_unit', `"${text}" gives its own units but the unit column says ${columnUnit}`)
-    return { ok: true, value: convert(lb, 'lb', 'g') + convert(oz, 'oz', 'g'), entered: text.slice(0, 40) }
+    return { ok: true, value: convert(lb.value, 'lb', 'g') + convert(oz.value, 'oz', 'g'), entered: text.slice(0, 40) }
   }
-  const parts = /^(?<number>[+-]?[\d.,]+)\s*(?<unit>[a-zA-Z"]+\.?)?$/.exec(text)?.groups
+  const parts = numeric !== undefined ? { number: text, unit: undefined } : /^(?<number>[+-]?[\d.,\s\u00a0\u202f]*\d)\s*(?<unit>[a-zA-Z"]+\.?)?$/.exec(text)?.groups
   if (!parts) return fail('not_a_number', `"${text}" is not a number`)
-  const value = readNumber(parts.number!, options.decimal)
-  if (value === null) return fail('not_a_number', `"${parts.number}" is not a number written with "${options.decimal}" as the decimal separator`)
+  const reading = numeric !== undefined ? { ok: true as const, value: numeric } : readNumber(parts.number!, options.decimal)
+  if (!reading.ok) return fail('not_a_number', `"${parts.number}" is not a number we can read with "${options.decimal}" as the decimal mark. ${reading.message}`)
+  const value = reading.value
   let unit: string | null | undefined = columnUnit ?? options.fixedUnit
   if (parts.unit) {
     const cellUnit = unitOf(parts.unit, options.allowed)
@@ -188,18 +226,36 @@ export function readAmount(cell: Cell, options: { base: 'g' | 'cm', allowed: rea
 
 const round = (value: number, places: number) => Math.round(value * 10 ** places) / 10 ** places
 
-/** One spreadsheet row, by column name, to a measurement or the first reason it cannot be one. */
-export function readMeasurementRow(cells: Record<string, Cell>, mapping: ImportMapping, index: FishIndex, today: string): RowResult {
+/** A value over the timeline's limits, said in the importer's own units; null when within them. */
+function overLimit(value: { weightG?: number, lengthCm?: number }, style: PlausibilityStyle): string | null {
+  const mass = (g: number) => formatMass(g, style.units, style.decimalMark)
+  const length = (cm: number) => formatLength(cm, style.units, style.decimalMark)
+  if (value.weightG !== undefined && !(value.weightG > 0)) return 'The weight must be more than 0'
+  if (value.weightG !== undefined && value.weightG > MEASUREMENT_LIMITS.weightG) {
+    return `${mass(value.weightG)} is more than ${mass(MEASUREMENT_LIMITS.weightG)}: not a plausible weight for a pond fish. Check the unit.`
+  }
+  if (value.lengthCm !== undefined && !(value.lengthCm > 0)) return 'The length must be more than 0'
+  if (value.lengthCm !== undefined && value.lengthCm > MEASUREMENT_LIMITS.lengthCm) {
+    return `${length(value.lengthCm)} is more than ${length(MEASUREMENT_LIMITS.lengthCm)}: not a plausible length for a pond fish. Check the unit.`
+  }
+  return null
+}
+
+/**
+ * One spreadsheet row, by column name, to a measurement or the first reason it cannot be one. Messages
+ * about limits speak the importer's units (`style`).
+ */
+export function readMeasurementRow(cells: Record<string, Cell>, mapping: ImportMapping, index: FishIndex, today: string, style: PlausibilityStyle = { units: 'metric', decimalMark: 'point' }): RowResult {
   const fish = findFish(cellText(cells[mapping.fishColumn]), mapping.fishMatch, index)
   if ('ok' in fish) return fish
   const date = readDate(cells[mapping.dateColumn], mapping.dateFormat, today)
   if (!date.ok) return fail('bad_date', date.message)
   const weight = mapping.weightColumn
-    ? readAmount(cells[mapping.weightColumn], { base: 'g', allowed: WEIGHT_UNITS, fixedUnit: mapping.weightUnit, unitCell: mapping.weightUnitColumn ? cells[mapping.weightUnitColumn] : undefined, decimal: mapping.decimalSeparator })
+    ? readAmount(cells[mapping.weightColumn], { base: 'g', allowed: WEIGHT_UNITS, fixedUnit: mapping.weightUnit, unitCell: mapping.weightUnitColumn ? cells[mapping.weightUnitColumn] : undefined, decimal: mapping.decimalSeparator ?? '.' })
     : { ok: true as const, value: undefined, entered: undefined }
   if (!weight.ok) return weight
   const length = mapping.lengthColumn
-    ? readAmount(cells[mapping.lengthColumn], { base: 'cm', allowed: LENGTH_UNITS, fixedUnit: mapping.lengthUnit, unitCell: mapping.lengthUnitColumn ? cells[mapping.lengthUnitColumn] : undefined, decimal: mapping.decimalSeparator })
+    ? readAmount(cells[mapping.lengthColumn], { base: 'cm', allowed: LENGTH_UNITS, fixedUnit: mapping.lengthUnit, unitCell: mapping.lengthUnitColumn ? cells[mapping.lengthUnitColumn] : undefined, decimal: mapping.decimalSeparator ?? '.' })
     : { ok: true as const, value: undefined, entered: undefined }
   if (!length.ok) return length
   if (weight.value === undefined && length.value === undefined) return fail('no_measurement', 'Neither a weight nor a length in this row')
@@ -208,7 +264,9 @@ export function readMeasurementRow(cells: Record<string, Cell>, mapping: ImportM
     ...(weight.value !== undefined ? { weightG: round(weight.value, 1) } : {}),
     ...(length.value !== undefined ? { lengthCm: round(length.value, 2) } : {}),
   }
-  // The timeline's own limits decide what is plausible, so an import can hold nothing the form would refuse.
+  // The timeline's own limits decide what is possible, so an import can hold nothing the form would refuse.
+  const limit = overLimit(value, style)
+  if (limit) return fail('out_of_range', limit)
   const checked = measurementData.safeParse({ weightG: value.weightG, lengthCm: value.lengthCm, lengthType: value.lengthType })
   if (!checked.success) return fail('out_of_range', checked.error.issues[0]!.message)
   const entered = {
@@ -266,6 +324,14 @@ export interface ImportReport {
   importedCount: number
   problems: ImportRowProblem[]
   skipped: ImportRowSkipped[]
+  /**
+   * Rows that read but look implausible by the same rule as the form (shared/utils/plausibility.ts). They are
+   * imported, with their warnings kept, only when the import is sent with `acknowledgeWarnings`; otherwise
+   * they are held back (not counted as ready or imported).
+   */
+  flagged: { row: number, fishName: string, date: string, warnings: PlausibilityWarning[] }[]
+  /** Whether the flagged rows were confirmed (and so are among the ready or imported rows). */
+  warningsAcknowledged: boolean
   /** The first rows as they will land, for the preview. */
   sample: { row: number, fishName: string, date: string, weightG: number | null, lengthCm: number | null, lengthType: LengthType }[]
   byFish: { fishId: string, fishName: string, count: number }[]

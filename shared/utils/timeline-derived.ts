@@ -59,14 +59,15 @@ export function eyeState(removals: readonly EyeRemoval[]): EyeState {
   return { ...state, summary: eyeSummary(state) }
 }
 
-function eyeSummary(state: Omit<EyeState, 'summary'>): string {
+/** The eye banner's words; `showDay` prints each date in the reader's style (ISO days when left out). */
+export function eyeSummary(state: Omit<EyeState, 'summary'>, showDay: (day: string) => string = day => day): string {
   const { left, right } = state
   if (!left && !right) return ''
-  if (left && right && left.on === right.on) return `both eyes removed ${left.on} — no eyes`
+  if (left && right && left.on === right.on) return `both eyes removed ${showDay(left.on)} — no eyes`
   const parts = [left && { side: 'left', on: left.on }, right && { side: 'right', on: right.on }]
     .filter((p): p is { side: string, on: string } => Boolean(p))
     .sort((a, b) => a.on.localeCompare(b.on))
-    .map(p => `${p.side} eye removed ${p.on}`)
+    .map(p => `${p.side} eye removed ${showDay(p.on)}`)
   const remaining = left && right ? 'no eyes' : left ? 'right eye only' : 'left eye only'
   return `${parts.join('; ')} — ${remaining}`
 }

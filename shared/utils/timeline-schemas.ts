@@ -2,6 +2,7 @@
 // sent and the route when it arrives; `entryCreateSchema` is their union with `kind` as the key.
 // Values are stored in metric units; the typed text may be kept beside them in `entered`.
 import { z } from 'zod'
+import { PLAUSIBILITY_CODES, plausibilityWarningSchema } from './plausibility'
 
 /** Kinds a person writes through the timeline. 'photo' comes from the photos table, 'pond_event' from the pond's own events; moves and owner changes come later. */
 export const ENTRY_KINDS = ['measurement', 'observation', 'exam', 'problem', 'procedure', 'anaesthesia', 'treatment', 'lab_result', 'companion', 'death'] as const
@@ -41,13 +42,17 @@ export type LengthType = typeof LENGTH_TYPES[number]
 export const MIN_WEIGHT_G = 0.1
 export const MIN_LENGTH_CM = 0.5
 
+// The largest koi on record weigh about 40 kg and measure about 1.2 m.
+export const MEASUREMENT_LIMITS = { weightG: 60_000, lengthCm: 150 } as const
+
 export const measurementData = z.strictObject({
-  // The largest koi on record weigh about 40 kg and measure about 1.2 m.
-  weightG: bodyAmount('weight', MIN_WEIGHT_G, 60_000, 'g').optional(),
-  lengthCm: bodyAmount('length', MIN_LENGTH_CM, 150, 'cm').optional(),
+  weightG: bodyAmount('weight', MIN_WEIGHT_G, MEASUREMENT_LIMITS.weightG, 'g').optional(),
+  lengthCm: bodyAmount('length', MIN_LENGTH_CM, MEASUREMENT_LIMITS.lengthCm, 'cm').optional(),
   lengthType: z.enum(LENGTH_TYPES, 'Choose total, fork or standard length').default('total'),
   entered: enteredAs,
   note: limitedText(1000).optional(),
+  // Plausibility warnings the author saw and confirmed; the server replaces whatever a client sends here.
+  warnings: z.array(plausibilityWarningSchema).max(PLAUSIBILITY_CODES.length).optional(),
 }).refine(d => d.weightG !== undefined || d.lengthCm !== undefined, { message: 'Enter a weight, a length or both', path: ['weightG'] })
 
 // ---- observation ------------------------------------------------------------------------------
@@ -306,7 +311,8 @@ const entryOf = <K extends EntryKind, S extends z.ZodType>(kind: K, data: S) => 
 })
 
 export const entryCreateSchema = z.discriminatedUnion('kind', [
-  entryOf('measurement', measurementData),
+  // The codes of the plausibility warnings the author has seen and wants saved anyway.
+  entryOf('measurement', measurementData).extend({ acknowledgedWarnings: z.array(z.enum(PLAUSIBILITY_CODES, 'Unknown warning')).max(PLAUSIBILITY_CODES.length).optional() }),
   entryOf('observation', observationData),
   entryOf('exam', examData),
   entryOf('problem', problemData),
@@ -330,6 +336,7 @@ export const entryAmendEnvelope = z.strictObject({
   occurredAt: occurredAtSchema.optional(),
   data: z.record(z.string(), z.unknown(), 'Give the amended fields'),
   reason,
+  acknowledgedWarnings: z.array(z.enum(PLAUSIBILITY_CODES, 'Unknown warning')).max(PLAUSIBILITY_CODES.length).optional(),
 })
 
 export function entryAmendSchemaFor(kind: EntryKind) {

@@ -1,5 +1,6 @@
 // Unit conversion between metric and US customary units, with the exact factors of
 // NIST SP 811 and Handbook 44 (all of them exact by definition, so round trips are clean).
+import type { DecimalMark } from './decimal'
 
 export const UNIT_SYSTEMS = ['metric', 'us'] as const
 type UnitSystem = typeof UNIT_SYSTEMS[number]
@@ -94,11 +95,13 @@ export function convert(value: number, from: string, to: string): number {
 // Shown instead of a number when there is none to show.
 const NO_VALUE = '—'
 
-function formatNumber(value: number, fractionDigits: number): string {
-  return new Intl.NumberFormat('en-US', {
+// Written in the reader's decimal style: "1,250.5" with a point, "1.250,5" with a comma.
+function formatNumber(value: number, fractionDigits: number, mark: DecimalMark = 'point'): string {
+  const text = new Intl.NumberFormat('en-US', {
     minimumFractionDigits: fractionDigits,
     maximumFractionDigits: fractionDigits,
   }).format(value)
+  return mark === 'point' ? text : text.replace(/[.,]/g, symbol => (symbol === '.' ? ',' : '.'))
 }
 
 function isMeasurable(value: number): boolean {
@@ -106,7 +109,7 @@ function isMeasurable(value: number): boolean {
 }
 
 /** "850 g", "1.25 kg" (metric); "12.1 oz", "2 lb 12.1 oz" (US). */
-export function formatMass(grams: number, system: UnitSystem): string {
+export function formatMass(grams: number, system: UnitSystem, mark: DecimalMark = 'point'): string {
   if (!isMeasurable(grams)) return NO_VALUE
   if (system === 'us') {
     const totalOunces = grams / 28.349523125
@@ -114,32 +117,38 @@ export function formatMass(grams: number, system: UnitSystem): string {
     const tenthsOfOunce = Math.round(totalOunces * 10)
     const pounds = Math.floor(tenthsOfOunce / 160)
     const ounces = (tenthsOfOunce - pounds * 160) / 10
-    if (pounds === 0) return `${formatNumber(ounces, 1)} oz`
-    return `${formatNumber(pounds, 0)} lb ${formatNumber(ounces, 1)} oz`
+    if (pounds === 0) return `${formatNumber(ounces, 1, mark)} oz`
+    return `${formatNumber(pounds, 0, mark)} lb ${formatNumber(ounces, 1, mark)} oz`
   }
-  if (grams >= 1000) return `${formatNumber(grams / 1000, 2)} kg`
+  if (grams >= 1000) return `${formatNumber(grams / 1000, 2, mark)} kg`
   // Small goldfish weigh a few grams: a decimal matters there, not on a koi.
-  return grams < 10 ? `${formatNumber(grams, 1)} g` : `${formatNumber(grams, 0)} g`
+  return grams < 10 ? `${formatNumber(grams, 1, mark)} g` : `${formatNumber(grams, 0, mark)} g`
+}
+
+/** A recorded weight with its grams spelled out: "1,250 g (1.25 kg)", so a weight typed in grams reads back as typed. */
+export function formatMassWithGrams(grams: number, system: UnitSystem, mark: DecimalMark = 'point'): string {
+  if (system === 'us' || !isMeasurable(grams) || grams < 1000) return formatMass(grams, system, mark)
+  return `${formatNumber(grams, Number.isInteger(Number(grams.toFixed(1))) ? 0 : 1, mark)} g (${formatMass(grams, system, mark)})`
 }
 
 /** "40.0 cm" (metric); "15.7 in" (US). */
-export function formatLength(centimetres: number, system: UnitSystem): string {
+export function formatLength(centimetres: number, system: UnitSystem, mark: DecimalMark = 'point'): string {
   if (!isMeasurable(centimetres)) return NO_VALUE
-  if (system === 'us') return `${formatNumber(centimetres / 2.54, 1)} in`
-  return `${formatNumber(centimetres, 1)} cm`
+  if (system === 'us') return `${formatNumber(centimetres / 2.54, 1, mark)} in`
+  return `${formatNumber(centimetres, 1, mark)} cm`
 }
 
 /** "12,000 L" (metric); "3,170 US gal" (US). Under 100 one decimal is kept for tanks and tubs. */
-export function formatVolume(litres: number, system: UnitSystem): string {
+export function formatVolume(litres: number, system: UnitSystem, mark: DecimalMark = 'point'): string {
   if (!isMeasurable(litres)) return NO_VALUE
   const value = system === 'us' ? litres / 3.785411784 : litres
-  const text = formatNumber(value, value < 100 ? 1 : 0)
+  const text = formatNumber(value, value < 100 ? 1 : 0, mark)
   return system === 'us' ? `${text} US gal` : `${text} L`
 }
 
 /** "20.0 °C" (metric); "68.0 °F" (US). */
-export function formatTemperature(celsius: number, system: UnitSystem): string {
+export function formatTemperature(celsius: number, system: UnitSystem, mark: DecimalMark = 'point'): string {
   if (typeof celsius !== 'number' || !Number.isFinite(celsius)) return NO_VALUE
-  if (system === 'us') return `${formatNumber(celsius * 1.8 + 32, 1)} °F`
-  return `${formatNumber(celsius, 1)} °C`
+  if (system === 'us') return `${formatNumber(celsius * 1.8 + 32, 1, mark)} °F`
+  return `${formatNumber(celsius, 1, mark)} °C`
 }

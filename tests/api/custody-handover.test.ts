@@ -265,3 +265,23 @@ describe('handing a pond over to a new owner', () => {
     expect((await heir.client.get(`/api/ponds/${pond.id}/invitations`)).body).toEqual([])
   })
 })
+
+describe('the words of a handover offer', () => {
+  it.each([
+    { option: 'stay', says: /What happens when you accept: The keepers and vets of the pond keep their roles, and Owner \(with any other owner\) stays on as a keeper/ },
+    { option: 'read_only', says: /What happens when you accept: Everyone now in the pond, Owner included, can still see its whole history but can change nothing/ },
+    { option: 'leave', says: /What happens when you accept: Everyone now in the pond, Owner included, loses access when you accept/ },
+  ] as const)('tells the recipient what happens to them and when the offer expires ($option)', async ({ option, says }) => {
+    const { owner, pond } = await pondWithRoles()
+    const email = uniqueEmail('recipient')
+    const response = await owner.client.post(`/api/ponds/${pond.id}/handovers`, { email, membersOption: option }, { 'accept-language': 'en-GB' })
+    expect(response.status).toBe(201)
+    const mail = await waitForMail(email, m => m.subject.includes('offers you the pond'))
+    const text = mail.text.replace(/\s+/g, ' ')
+    expect(text).toMatch(says)
+    // The sender's own words ("you and any other owner", "you included") are not sent to the recipient.
+    expect(text).not.toMatch(/you and any other owner|you included/)
+    const expires = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).format(new Date(response.body.expiresAt))
+    expect(text).toContain(`the offer expires on ${expires} (in 14 days)`)
+  })
+})

@@ -184,7 +184,7 @@ describe('importing measurements from a spreadsheet', () => {
     expect(Object.keys(badMapping.body.data.fieldErrors).sort()).toEqual(['dateFormat', 'fishMatch'])
     expect((await uploadSheet(world.keeper.client, path(), { name: 'w.csv', data: MIXED_CSV }, { mapping: 'not json' })).status).toBe(400)
     expect(await count()).toBe(before)
-  })
+  }, 120_000)
 
   it('is for owners and keepers: vet 403, outsider 404, signed out 401, a read-only keeper 403', async () => {
     const { owner, keeper, vet, outsider, anonymous, pond } = await pondWithRoles()

@@ -236,3 +236,34 @@ describe('rehoming a fish with another owner', () => {
     expect((await owner.client.get(`/api/fish/${fish.id}/transfers`)).body).toHaveLength(1)
   })
 })
+
+describe('before a move', () => {
+  it('names the members of the old pond who are not in the new one, and checks access like the move', async () => {
+    const owner = await signedInUser({ name: 'Owner' })
+    const [keeper, vet, both] = await Promise.all([signedInUser({ name: 'Keeper' }), signedInUser({ name: 'Vet' }), signedInUser({ name: 'Both' })])
+    const [from, to] = [await createPond(owner.client), await createPond(owner.client)]
+    await addMember(from.id, keeper.user.id, 'keeper')
+    await addMember(from.id, vet.user.id, 'vet')
+    await addMember(from.id, both.user.id, 'vet')
+    await addMember(to.id, both.user.id, 'keeper')
+    const fish = await createFish(owner.client, from.id)
+    const preview = await owner.client.get(`/api/fish/${fish.id}/move-preview?toPondId=${to.id}`)
+    expect(preview.status, JSON.stringify(preview.body)).toBe(200)
+    expect(preview.body).toEqual({
+      toPond: { id: to.id, name: to.name },
+      losingSight: [{ id: keeper.user.id, name: 'Keeper', role: 'keeper' }, { id: vet.user.id, name: 'Vet', role: 'vet' }],
+      companions: [],
+    })
+    // Asking changes nothing.
+    expect((await testDb().query('select pond_id from fish where id = $1', [fish.id])).rows[0].pond_id).toBe(from.id)
+    expect((await keeper.client.get(`/api/fish/${fish.id}/move-preview?toPondId=${to.id}`)).status).toBe(403)
+    const stranger = await signedInUser()
+    expect((await stranger.client.get(`/api/fish/${fish.id}/move-preview?toPondId=${to.id}`)).status).toBe(404)
+    const foreign = await createPond(stranger.client)
+    expect((await owner.client.get(`/api/fish/${fish.id}/move-preview?toPondId=${foreign.id}`)).status).toBe(404)
+    const same = await owner.client.get(`/api/fish/${fish.id}/move-preview?toPondId=${from.id}`)
+    expect(same.status).toBe(400)
+    expect(same.body.data.fieldErrors.toPondId).toEqual(['The fish already lives in this pond'])
+    expect((await owner.client.get(`/api/fish/${fish.id}/move-preview?toPondId=nope`)).body.data.fieldErrors.toPondId).toEqual(['Choose one of your ponds'])
+  })
+})

@@ -65,6 +65,20 @@ describe('gallery', () => {
     const elsewhere = await addPhoto({ bytes: first.bytes, fishId: otherFish.id })
     expect(elsewhere.id).not.toBe(first.id)
   })
+
+  it('keeps the caption typed with the second upload of the same photo', async () => {
+    const fish = await createFish(client('owner'), world.pond.id)
+    const first = await addPhoto({ fishId: fish.id })
+    const captionOf = async () => (await photoRows('id = $1', [first.id]))[0]!.caption
+    expect(await captionOf()).toBe('')
+    expect(await addPhoto({ fishId: fish.id, bytes: first.bytes, caption: 'Red patch behind the head' })).toMatchObject({ id: first.id, duplicate: 'yes' })
+    expect(await captionOf()).toBe('Red patch behind the head')
+    await addPhoto({ fishId: fish.id, bytes: first.bytes, caption: 'Seen from above at the spring check' })
+    expect(await captionOf()).toBe('Red patch behind the head — Seen from above at the spring check')
+    // The same words again add nothing.
+    await addPhoto({ fishId: fish.id, bytes: first.bytes, caption: 'Red patch behind the head' })
+    expect(await captionOf()).toBe('Red patch behind the head — Seen from above at the spring check')
+  })
 })
 
 describe('view and caption', () => {
@@ -101,6 +115,24 @@ describe('profile picture', () => {
     expect(refused.status).toBe(400)
     expect(refused.body.data.fieldErrors.photoId).toEqual(['This fish has no such photo'])
     expect((await client('owner').post(path, { photoId: 'nope' })).status).toBe(400)
+  })
+
+  it('keeps a focal point (where the head is) for cropping, reset when another picture is chosen', async () => {
+    const fish = await createFish(client('owner'), world.pond.id)
+    const portrait = await addPhoto({ fishId: fish.id, bytes: await makeJpeg({ width: 480, height: 640 }) })
+    const path = `/api/fish/${fish.id}/profile-photo`
+    const set = await client('keeper').post(path, { photoId: portrait.id, focus: { x: 50, y: 22 } })
+    expect(set.status, JSON.stringify(set.body)).toBe(200)
+    expect((await client('vet').get(`/api/fish/${fish.id}`)).body).toMatchObject({ profilePhotoId: portrait.id, profileFocus: { x: 50, y: 22 } })
+    const card = (await client('vet').get(`/api/ponds/${world.pond.id}/fish`)).body.find((f: { id: string }) => f.id === fish.id)
+    expect(card.profileFocus).toEqual({ x: 50, y: 22 })
+    const outside = await client('owner').post(path, { photoId: portrait.id, focus: { x: 120, y: -3 } })
+    expect(outside.status).toBe(400)
+    expect(outside.body.data.fieldErrors).toMatchObject({ 'focus.x': ['At most 100 %'], 'focus.y': ['At least 0 %'] })
+    expect((await client('vet').post(path, { photoId: portrait.id, focus: { x: 10, y: 10 } })).status).toBe(403)
+    const other = await addPhoto({ fishId: fish.id })
+    expect((await client('owner').post(path, { photoId: other.id })).status).toBe(200)
+    expect((await client('owner').get(`/api/fish/${fish.id}`)).body.profileFocus).toBeNull()
   })
 })
 

@@ -77,7 +77,8 @@ describe('entered in error', () => {
     const fish = await createFish(world.owner.client, world.pond.id, { name: 'Scales' })
     await addEntry(world.keeper.client, fish.id, { kind: 'measurement', occurredAt: daysAgo(60), data: { weightG: 1000, lengthCm: 40 } })
     await addEntry(world.keeper.client, fish.id, { kind: 'measurement', occurredAt: daysAgo(40), data: { weightG: 1010, lengthCm: 40 } })
-    const wrong = await addEntry(world.keeper.client, fish.id, { kind: 'measurement', occurredAt: daysAgo(10), data: { weightG: 400, lengthCm: 40 } })
+    // 400 g is implausible (K 0.63, −60 % in 30 days): saved only with the warnings acknowledged, as "Save anyway" does.
+    const wrong = await addEntry(world.keeper.client, fish.id, { kind: 'measurement', occurredAt: daysAgo(10), data: { weightG: 400, lengthCm: 40 }, acknowledgedWarnings: ['condition_factor', 'weight_jump'] })
 
     // Before: the 400 g weighing is the latest, and 400 g from 1010 g in 30 days is a loss alert.
     expect((await world.vet.client.get(`/api/fish/${fish.id}/facts`)).body.latestWeight.weightG).toBe(400)

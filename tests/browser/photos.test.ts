@@ -109,6 +109,48 @@ describe('photos on a fish profile, in Chromium', () => {
     await page.close()
   })
 
+  it('says a photo added twice is already in the gallery, and stores it once', async () => {
+    const { owner, fish } = await ownerWithFish('Yuki')
+    const path = join(files, 'yuki-twice.jpg')
+    const bytes = await makeKoiPhoto(31, { width: 1200, height: 900 })
+    writeFileSync(path, bytes)
+    const first = await tusUpload(MAIN_URL, owner.client, bytes, { metadata: { fishId: fish.id, filename: 'yuki-first.jpg', view: 'top' } }).done
+    expect(first.headers['photo-state']).toBe('ready')
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`)
+    await openUploader(page)
+    await addFiles(page, [path])
+    await page.locator('.uppy-StatusBar-actionBtn--upload').click()
+    await expect.poll(() => page.getByTestId('upload-already-there').textContent(), { timeout: 30_000 }).toMatch(/yuki-twice\.jpg\s+is already in the gallery/)
+    // The file leaves the uploader's list, so nothing there reads "complete" for it.
+    await expect.poll(() => page.locator('.uppy-Dashboard-Item').count()).toBe(0)
+    expect(await photoRows('fish_id = $1', [fish.id])).toHaveLength(1)
+    await page.getByTestId('photo-uploader').screenshot({ path: join(SCREENSHOT_DIR, 'fish-photo-already-there-1280.png') })
+    await page.close()
+  })
+
+  it('keeps the fish\'s head in view: tapping it on a portrait photo sets where the picture is cropped', async () => {
+    const { owner, pond, fish } = await ownerWithFish('Kaze')
+    const portrait = await tusUpload(MAIN_URL, owner.client, await makeKoiPhoto(5, { width: 900, height: 1600 }), { metadata: { fishId: fish.id, filename: 'kaze-tall.jpg', view: 'top' } }).done
+    expect(portrait.headers['photo-state']).toBe('ready')
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`, { waitUntil: 'networkidle' })
+    await page.getByTestId('portrait-focus-open').click()
+    const photo = page.getByTestId('portrait-focus-photo')
+    await photo.locator('img').evaluate(img => (img as HTMLImageElement).decode())
+    const box = (await photo.boundingBox())!
+    await page.mouse.click(box.x + box.width * 0.5, box.y + box.height * 0.2)
+    await screenshots(page, 'fish-portrait-focus')
+    await page.getByTestId('portrait-focus-save').click()
+    const profileImage = page.locator('img[alt="Photo of Kaze"]').first()
+    await expect.poll(() => profileImage.evaluate(img => getComputedStyle(img).objectPosition)).toBe('50% 20%')
+    await page.goto(`/ponds/${pond.id}`, { waitUntil: 'networkidle' })
+    await expect.poll(() => page.getByTestId('fish-card-Kaze').locator('img').evaluate(img => getComputedStyle(img).objectPosition)).toBe('50% 20%')
+    await page.close()
+  })
+
   it('shows the server\'s own reason when a file is refused', async () => {
     const { owner, fish } = await ownerWithFish('Kumo')
     const path = join(files, 'not-really.jpg')

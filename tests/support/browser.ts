@@ -12,13 +12,18 @@ const CHROMIUM_ARGS = [
   '--disable-background-networking', '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage',
 ]
 
-export async function openBrowser(width = 1280, height = 900): Promise<BrowserContext> {
+/** A fresh Chromium profile; `locale` and `timezoneId` stand for the person's browser settings (Accept-Language, time zone). */
+export async function openBrowser(width = 1280, height = 900, settings: { locale?: string, timezoneId?: string } = {}): Promise<BrowserContext> {
   const profile = mkdtempSync(join(tmpdir(), 'fintrail-chromium-'))
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
     args: CHROMIUM_ARGS,
     viewport: { width, height },
     baseURL: MAIN_URL,
+    // A fixed reader by default (British English, UTC), so the dates the tests read do not depend on the machine.
+    locale: 'en-GB',
+    timezoneId: 'UTC',
+    ...settings,
   })
   context.setDefaultTimeout(15_000)
   return context

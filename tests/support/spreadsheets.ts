@@ -7,7 +7,14 @@ export async function uploadSheet(client: ApiClient, path: string, file: { name:
   const form = new FormData()
   form.set('file', new Blob([typeof file.data === 'string' ? file.data : new Uint8Array(file.data)], { type: file.type ?? 'text/csv' }), file.name)
   for (const [key, value] of Object.entries(fields)) form.set(key, typeof value === 'string' ? value : JSON.stringify(value))
-  const response = await fetch(MAIN_URL + path, { method: 'POST', headers: client.cookies.size ? { cookie: client.cookieHeader() } : {}, body: form })
+  const send = () => fetch(MAIN_URL + path, { method: 'POST', headers: client.cookies.size ? { cookie: client.cookieHeader() } : {}, body: form })
+  // A test that just spent seconds building a file synchronously may reuse a pooled connection the server
+  // closed for idleness meanwhile (its keep-alive timeout is 5 s): the write then fails before any byte
+  // reached a handler, so sending once more is safe.
+  const response = await send().catch((error: Error & { cause?: { code?: string } }) => {
+    if (['EPIPE', 'ECONNRESET', 'UND_ERR_SOCKET'].includes(error.cause?.code ?? '')) return send()
+    throw error
+  })
   const text = await response.text()
   let body: any // eslint-disable-line @typescript-eslint/no-explicit-any
   try {

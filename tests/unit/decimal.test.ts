@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { parseDecimal, readDecimal } from '../../shared/utils/decimal'
+import { decimalMarkOfLocale, formatDecimal, parseDecimal, readDecimal } from '../../shared/utils/decimal'
 
 // The table of the numbers issue: how a point-decimal and a comma-decimal reader write numbers
 // (thousands grouped in threes, ISO 80000-1 § 7.3.1 for the space group; the rest common practice).
@@ -31,5 +31,25 @@ describe('parseDecimal', () => {
     const reading = readDecimal('1,25', 'point')
     expect(reading.ok).toBe(false)
     if (!reading.ok) expect(reading.message).toContain('1.25')
+  })
+})
+
+// Written back the way the reader writes numbers, so what the form shows ("= 1,250 g") reads back the same.
+describe('formatDecimal', () => {
+  it.each([
+    [1250, 'point', '1,250'],
+    [1250, 'comma', '1.250'],
+    [12000.5, 'point', '12,000.5'],
+    [1250.5, 'comma', '1.250,5'],
+    [0.5, 'comma', '0,5'],
+    [-3.5, 'point', '-3.5'],
+  ] as const)('%d with a decimal %s is "%s", and reads back', (value, mark, text) => {
+    expect(formatDecimal(value, mark)).toBe(text)
+    expect(parseDecimal(text, mark)).toBe(value)
+  })
+
+  // Unicode CLDR number symbols (as shipped with Node's ICU): German writes a decimal comma, US English a point.
+  it.each([['de-DE', 'comma'], ['fr-FR', 'comma'], ['en-US', 'point'], ['en-GB', 'point'], [undefined, 'point']] as const)('the locale %s writes a decimal %s', (locale, mark) => {
+    expect(decimalMarkOfLocale(locale)).toBe(mark)
   })
 })

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { indexFish, readAmount, readDate, readMeasurementRow, suggestMapping, type ImportMapping } from '../../shared/utils/measurement-import'
+import { indexFish, readAmount, readDate, readMeasurementRow, suggestMapping, suggestUnits, unitFromHeader, type ImportMapping } from '../../shared/utils/measurement-import'
 
 // Unit factors: NIST SP 811 / Handbook 44, exact by definition — 1 lb = 453.59237 g, 1 oz = 28.349523125 g, 1 in = 2.54 cm.
 const weight = (cell: string | number, extra: Partial<Parameters<typeof readAmount>[1]> = {}) =>
@@ -13,6 +13,8 @@ describe('reading an amount from a spreadsheet cell', () => {
     ['2 lb 12 oz', {}, 2 * 453.59237 + 12 * 28.349523125, '2 lb 12 oz'], // NIST SP 811: 1247.3790175 g
     ['3 lbs', {}, 1360.77711, '3 lb'], // "lbs" is the same unit
     ['1,5', { decimal: ',' as const, fixedUnit: 'kg' }, 1500, '1,5 kg'], // decimal comma chosen
+    ['1,250', { fixedUnit: 'g' }, 1250, undefined], // thousands grouped in threes with a point reader (parseDecimal table)
+    ['1.250,5', { decimal: ',' as const, fixedUnit: 'g' }, 1250.5, undefined], // the same with a comma reader
     [1250.5, { fixedUnit: 'g' }, 1250.5, undefined], // a number cell needs no parsing
   ])('%s → %d g', (cell, extra, grams, entered) => {
     const result = weight(cell, extra)
@@ -24,7 +26,7 @@ describe('reading an amount from a spreadsheet cell', () => {
 
   it.each([
     ['heavy', { fixedUnit: 'g' }, 'not_a_number'],
-    ['1,250', { fixedUnit: 'g' }, 'not_a_number'], // a comma with "." chosen: a thousands separator or a decimal comma? Not guessed.
+    ['1,25', { fixedUnit: 'g' }, 'not_a_number'], // a comma with "." chosen cannot be a thousands group: refused, not guessed (parseDecimal table)
     ['13 stone', {}, 'unknown_unit'],
     ['1250', {}, 'missing_unit'],
     ['2 kg', { unitCell: 'lb' }, 'unknown_unit'], // the cell and the unit column disagree
@@ -80,5 +82,33 @@ describe('a whole row and the suggested mapping', () => {
     expect(suggestMapping(['Koi', 'Date', 'Weight (kg)'], [{ Date: '2024-01-31' }])).toEqual({ fishColumn: 'Koi', fishMatch: 'name', dateColumn: 'Date', weightColumn: 'Weight (kg)', dateFormat: 'YYYY-MM-DD' })
     expect(suggestMapping(['Koi', 'Date'], [{ Date: '01/02/2024' }]).dateFormat).toBeUndefined()
     expect(suggestMapping(['Koi', 'Date'], [{ Date: '31/01/2024' }]).dateFormat).toBe('DD/MM/YYYY')
+  })
+
+  it('says an over-limit weight in the importer\'s own units', () => {
+    // 61 kg = 61000 g; 60 kg limit = 132 lb 4.4 oz (60000 / 28.349523125 = 2116.4 oz; NIST SP 811).
+    const us = readMeasurementRow({ Fish: 'Hana', Date: '2024-01-02', W: '61000' }, mapping, index, '2026-01-01', { units: 'us', decimalMark: 'point' })
+    expect(us).toMatchObject({ ok: false, reason: 'out_of_range' })
+    if (!us.ok) expect(us.message).toContain('more than 132 lb 4.4 oz')
+    const metric = readMeasurementRow({ Fish: 'Hana', Date: '2024-01-02', W: '61000' }, mapping, index, '2026-01-01', { units: 'metric', decimalMark: 'comma' })
+    if (!metric.ok) expect(metric.message).toBe('61,00 kg is more than 60,00 kg: not a plausible weight for a pond fish. Check the unit.')
+    expect(metric.ok).toBe(false)
+  })
+})
+
+describe('units from the column headers and the importer\'s unit system', () => {
+  it.each([
+    ['Weight (g)', 'weight', 'g'], ['Weight (kg)', 'weight', 'kg'], ['weight kg', 'weight', 'kg'], ['Wt lbs', 'weight', 'lb'],
+    ['Weight in g', 'weight', 'g'], ['oz', 'weight', 'oz'], ['Weight', 'weight', undefined],
+    ['Length (cm)', 'length', 'cm'], ['Length in cm', 'length', 'cm'], ['TL (in)', 'length', 'in'], ['Length inches', 'length', 'in'],
+    ['SL mm', 'length', 'mm'], ['Length', 'length', undefined],
+  ] as const)('"%s" names the %s unit %s', (header, quantity, unit) => {
+    expect(unitFromHeader(header, quantity)).toBe(unit)
+  })
+
+  it('falls back to the importer\'s units, and offers none where a unit column was found', () => {
+    expect(suggestUnits({ weightColumn: 'Weight', lengthColumn: 'Length' }, 'us')).toEqual({ weightUnit: 'lb', lengthUnit: 'in' })
+    expect(suggestUnits({ weightColumn: 'Weight', lengthColumn: 'Length' }, 'metric')).toEqual({ weightUnit: 'g', lengthUnit: 'cm' })
+    expect(suggestUnits({ weightColumn: 'Weight (kg)', lengthColumn: 'TL (in)' }, 'metric')).toEqual({ weightUnit: 'kg', lengthUnit: 'in' })
+    expect(suggestUnits({ weightColumn: 'Weight', weightUnitColumn: 'Unit' }, 'metric')).toEqual({})
   })
 })

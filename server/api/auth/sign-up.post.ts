@@ -10,7 +10,7 @@ export default defineEventHandler(async (event) => {
   }
   const passwordHash = await hashPassword(input.password)
   const [user] = await useDb().insert(schema.users)
-    .values({ name: input.name, email: input.email, passwordHash })
+    .values({ name: input.name, email: input.email, passwordHash, decimalMark: input.decimalMark ?? 'point' })
     .returning()
     .catch((error) => {
       throw conflictFromUniqueViolation(error) ?? error

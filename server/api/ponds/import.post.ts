@@ -5,6 +5,8 @@ import { randomUUID } from 'node:crypto'
 import { Transform } from 'node:stream'
 import { pipeline } from 'node:stream/promises'
 import { ARCHIVE_LIMITS } from '#shared/utils/archive-schema'
+import { openArchive } from '../../workers/archive-read'
+import { UploadRefusal } from '../../workers/zip-reader'
 
 /** Receives a pond archive as the raw request body (application/zip) and creates a new pond from it. */
 export default defineEventHandler(async (event) => {
@@ -24,16 +26,19 @@ export default defineEventHandler(async (event) => {
   try {
     await pipeline(event.node.req, limit, createWriteStream(path))
     if (received === 0) throw archiveRefused('the upload was empty')
-    const zip = await openZip(path)
+    // The whole check runs in the upload worker; only an archive that passed it is opened here to be written.
+    const manifest = await checkArchiveInWorker(path)
+    const archive = await openArchive(path).catch((error) => {
+      throw error instanceof UploadRefusal ? archiveRefused(error.message, error.status) : error
+    })
     try {
-      const archive = await validateArchive(zip)
-      const pondId = await importArchive(zip, archive, user.id)
-      await recordAudit(event, { pondId, action: 'pond.imported', details: { name: archive.manifest.pond.name, exportedAt: archive.manifest.exportedAt, counts: archive.manifest.counts } })
+      const pondId = await importArchive(archive, user.id)
+      await recordAudit(event, { pondId, action: 'pond.imported', details: { name: manifest.pond.name, exportedAt: manifest.exportedAt, counts: manifest.counts } })
       setResponseStatus(event, 201)
-      return { pondId, counts: archive.manifest.counts }
+      return { pondId, counts: manifest.counts }
     }
     finally {
-      zip.close()
+      await archive.close()
     }
   }
   finally {

@@ -16,6 +16,8 @@ export interface FishListRow extends Record<string, unknown> {
   microchip: string | null
   status: FishListItem['status']
   profile_photo_id: string | null
+  profile_focus_x: number | null
+  profile_focus_y: number | null
   weight_g: number | null
   length_cm: number | null
   k_weight_g: number | null
@@ -43,7 +45,7 @@ export function fishListSql(pondId: string, query: FishListQuery) {
   const order = ORDER[query.sort ?? 'name']
   return sql`
     select f.id, f.name, f.species, f.scientific_name, f.variety, f.sex, f.hatch_year, f.hatch_year_estimated,
-      f.microchip, f.status, f.profile_photo_id, s.weight_g, s.weighed_at, s.length_cm,
+      f.microchip, f.status, f.profile_photo_id, f.profile_focus_x, f.profile_focus_y, s.weight_g, s.weighed_at, s.length_cm,
       s.condition_weight_g as k_weight_g, coalesce(s.weight_alert, false) as weight_alert
     from fish f
     left join fish_measurement_summary s on s.fish_id = f.id

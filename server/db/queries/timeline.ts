@@ -203,6 +203,7 @@ export interface LengthWeightRow extends Record<string, unknown> {
   fish_id: string
   name: string
   species: string
+  scientific_name: string
   at: Date
   weight_g: number
   length_cm: number
@@ -212,7 +213,7 @@ export interface LengthWeightRow extends Record<string, unknown> {
 /** Every weight-and-length pair of the fish now in the pond, for its length–weight chart and fit. */
 export function pondLengthWeightSql(pondId: string) {
   return sql<LengthWeightRow>`
-    select f.id as fish_id, f.name, f.species, e.occurred_at as at, (e.data->>'weightG')::float8 as weight_g,
+    select f.id as fish_id, f.name, f.species, f.scientific_name, e.occurred_at as at, (e.data->>'weightG')::float8 as weight_g,
       (e.data->>'lengthCm')::float8 as length_cm, e.data->>'lengthType' as length_type
     from fish f
     join timeline_entries e on e.fish_id = f.id and e.kind = 'measurement' and not e.entered_in_error

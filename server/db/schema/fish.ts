@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm'
-import { boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { boolean, check, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, smallint, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { timestamps } from './columns'
 import { ponds } from './ponds'
 import { users } from './users'
@@ -24,12 +24,16 @@ export const fish = pgTable('fish', {
   features: text('features').notNull().default(''),
   status: fishStatus('status').notNull().default('alive'),
   profilePhotoId: uuid('profile_photo_id'),
+  // Where the fish's head is on the profile photo, in percent across and down (CSS object-position); null is the centre.
+  profileFocusX: smallint('profile_focus_x'),
+  profileFocusY: smallint('profile_focus_y'),
   // Optimistic locking: a PATCH names the version it edited; a stale one is refused with 409.
   version: integer('version').notNull().default(1),
   ...timestamps,
 }, t => [
   index('fish_pond_idx').on(t.pondId),
   index('fish_pond_name_idx').on(t.pondId, t.name),
+  check('fish_profile_focus_range', sql`${t.profileFocusX} between 0 and 100 and ${t.profileFocusY} between 0 and 100`),
   uniqueIndex('fish_microchip_alive_unique').on(t.microchip).where(sql`${t.status} = 'alive' and ${t.microchip} is not null`),
 ])
 

@@ -3,6 +3,8 @@ import { boolean, index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex,
 import { timestamps } from './columns'
 
 export const unitSystem = pgEnum('unit_system', ['metric', 'us'])
+// How the person writes decimals: read by shared/utils/decimal.ts for every number they type.
+export const decimalMark = pgEnum('decimal_mark', ['point', 'comma'])
 
 export const users = pgTable('users', {
   id: uuid('id').primaryKey().defaultRandom(),
@@ -10,6 +12,7 @@ export const users = pgTable('users', {
   name: varchar('name', { length: 120 }).notNull(),
   passwordHash: text('password_hash').notNull(),
   units: unitSystem('units').notNull().default('metric'),
+  decimalMark: decimalMark('decimal_mark').notNull().default('point'),
   // The daily e-mail of what is due in the person's ponds; they can turn it off on the account page.
   dueDigest: boolean('due_digest').notNull().default(true),
   ...timestamps,

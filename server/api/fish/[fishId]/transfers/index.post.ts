@@ -1,4 +1,5 @@
 import { and, eq, isNull } from 'drizzle-orm'
+import { formatDate } from '#shared/utils/dates'
 import { fishIdParams } from '#shared/utils/fish-schemas'
 import { fishTransferCreateSchema, HANDOVER_LIFETIME_DAYS, type FishTransferOffer } from '#shared/utils/custody-schemas'
 
@@ -24,7 +25,7 @@ export default defineEventHandler(async (event): Promise<FishTransferOffer> => {
       fishId, fromPondId: fish.pondId, fromUserId: user.id, toEmail: input.email, tokenHash,
       confirmedSeparation: companions.length > 0, expiresAt: new Date(Date.now() + HANDOVER_LIFETIME_DAYS * 86_400_000),
     }).returning()
-    await queueMail(tx, transferMail({ to: input.email, fromName: user.name, fishName: fish.name, species: fish.species, link: `${appOrigin(event)}/transfers/${token}`, transferId: created!.id }))
+    await queueMail(tx, transferMail({ to: input.email, fromName: user.name, fishName: fish.name, species: fish.species, expiresOn: formatDate(created!.expiresAt, requestDateStyle(event)), link: `${appOrigin(event)}/transfers/${token}`, transferId: created!.id }))
     await recordAudit(event, { pondId: fish.pondId, action: 'fish.transfer_offered', details: { transferId: created!.id, fishId, fishName: fish.name, email: input.email, separatedFrom: companions } }, tx)
     return created!
   })

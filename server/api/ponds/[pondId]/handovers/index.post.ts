@@ -1,4 +1,5 @@
 import { and, eq, isNull, sql } from 'drizzle-orm'
+import { formatDate } from '#shared/utils/dates'
 import { HANDOVER_LIFETIME_DAYS, handoverCreateSchema, type HandoverOffer } from '#shared/utils/custody-schemas'
 import { pondIdParams } from '#shared/utils/pond-schemas'
 
@@ -25,7 +26,7 @@ export default defineEventHandler(async (event): Promise<HandoverOffer> => {
       pondId, fromUserId: user.id, toEmail: input.email, membersOption: input.membersOption, tokenHash,
       expiresAt: new Date(Date.now() + HANDOVER_LIFETIME_DAYS * 86_400_000),
     }).returning()
-    await queueMail(tx, handoverMail({ to: input.email, fromName: user.name, pondName: pond!.name, fishCount, membersOption: input.membersOption, link: `${appOrigin(event)}/handovers/${token}`, handoverId: created!.id }))
+    await queueMail(tx, handoverMail({ to: input.email, fromName: user.name, pondName: pond!.name, fishCount, membersOption: input.membersOption, expiresOn: formatDate(created!.expiresAt, requestDateStyle(event)), link: `${appOrigin(event)}/handovers/${token}`, handoverId: created!.id }))
     await recordAudit(event, { pondId, action: 'handover.offered', details: { handoverId: created!.id, email: input.email, membersOption: input.membersOption } }, tx)
     return created!
   })

@@ -1,4 +1,5 @@
 import { eq } from 'drizzle-orm'
+import { formatDate } from '#shared/utils/dates'
 import { invitationCreateSchema, pondIdParams } from '#shared/utils/pond-schemas'
 
 const INVITATION_LIFETIME_MS = 14 * 24 * 60 * 60 * 1000
@@ -15,7 +16,7 @@ export default defineEventHandler(async (event) => {
       pondId, email: input.email, role: input.role, tokenHash, invitedById: user.id,
       expiresAt: new Date(Date.now() + INVITATION_LIFETIME_MS),
     }).returning()
-    await queueMail(tx, invitationMail({ to: input.email, inviterName: user.name, pondName: pond!.name, role: input.role, link: `${appOrigin(event)}/invitations/${token}`, invitationId: created!.id }))
+    await queueMail(tx, invitationMail({ to: input.email, inviterName: user.name, pondName: pond!.name, role: input.role, expiresOn: formatDate(created!.expiresAt, requestDateStyle(event)), link: `${appOrigin(event)}/invitations/${token}`, invitationId: created!.id }))
     await recordAudit(event, { pondId, action: 'invitation.sent', details: { invitationId: created!.id, email: input.email, role: input.role } }, tx)
     return created!
   })

@@ -8,8 +8,8 @@ export default defineEventHandler(async (event): Promise<ImportReport> => {
   const { user } = await requirePondRole(event, pondId, IMPORT_ROLES)
   const { file, fields } = await readImportForm(event)
   const sheet = await readSpreadsheet(file, parseMapping(fields.mapping).sheet)
-  const mapping = parseMapping(fields.mapping, sheet.columns)
-  const report = await runImport(event, pondId, user.id, sheet, mapping, createHash('sha256').update(file.data).digest('hex'))
+  const mapping = parseMapping(fields.mapping, sheet.columns, user)
+  const report = await runImport(event, pondId, user.id, sheet, mapping, createHash('sha256').update(file.data).digest('hex'), importOptions(user, fields))
   setResponseStatus(event, 201)
   return report
 })
