@@ -1,7 +1,8 @@
 import { sql } from 'drizzle-orm'
 import { resetRequestSchema } from '#shared/utils/auth-schemas'
 
-const RESET_LIFETIME_MS = 60 * 60 * 1000
+// Counted from the row's own created_at (the transaction's clock), so the link lasts exactly one hour.
+const RESET_LIFETIME = sql`now() + interval '1 hour'`
 
 /**
  * Both branches do the same work (one lookup, one transaction, one mail in the outbox) and give
@@ -15,7 +16,7 @@ export default defineEventHandler(async (event) => {
   await useDb().transaction(async (tx) => {
     if (user) {
       const { token, tokenHash } = newLinkToken()
-      const [reset] = await tx.insert(schema.passwordResets).values({ userId: user.id, tokenHash, expiresAt: new Date(Date.now() + RESET_LIFETIME_MS) }).returning({ id: schema.passwordResets.id })
+      const [reset] = await tx.insert(schema.passwordResets).values({ userId: user.id, tokenHash, expiresAt: RESET_LIFETIME }).returning({ id: schema.passwordResets.id })
       await queueMail(tx, {
         to: user.email, kind: 'password-reset', subjectType: 'password-reset', subjectId: reset!.id,
         subject: 'Reset your Fintrail password',
