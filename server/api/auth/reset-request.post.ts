@@ -1,7 +1,8 @@
 import { sql } from 'drizzle-orm'
 import { resetRequestSchema } from '#shared/utils/auth-schemas'
 
-const RESET_LIFETIME_MS = 60 * 60 * 1000
+// Counted from the row's own created_at (the transaction's clock), so the link lasts exactly one hour.
+const RESET_LIFETIME = sql`now() + interval '1 hour'`
 
 /**
  * Both branches do the same work (one lookup, one transaction, one mail in the outbox) and give
@@ -12,12 +13,10 @@ export default defineEventHandler(async (event) => {
   const { email } = await readValidated(event, resetRequestSchema)
   const [user] = await useDb().select().from(schema.users).where(sql`lower(${schema.users.email}) = ${email}`).limit(1)
   const origin = appOrigin(event)
-  // Taken before the transaction, so the link lives one hour from its row's creation and not a moment more.
-  const expiresAt = new Date(Date.now() + RESET_LIFETIME_MS)
   await useDb().transaction(async (tx) => {
     if (user) {
       const { token, tokenHash } = newLinkToken()
-      const [reset] = await tx.insert(schema.passwordResets).values({ userId: user.id, tokenHash, expiresAt }).returning({ id: schema.passwordResets.id })
+      const [reset] = await tx.insert(schema.passwordResets).values({ userId: user.id, tokenHash, expiresAt: RESET_LIFETIME }).returning({ id: schema.passwordResets.id })
       await queueMail(tx, {
         to: user.email, kind: 'password-reset', subjectType: 'password-reset', subjectId: reset!.id,
         subject: 'Reset your Fintrail password',
