@@ -62,6 +62,8 @@ export default defineNuxtConfig({
       // "Which fish is this?" runs OpenCV in a worker thread, which needs a file of its own beside the
       // server entry: bundled here (OpenCV included) as CommonJS, because OpenCV's loader uses __dirname.
       async compiled(nitro) {
+        // The upload worker thread also starts from a file of its own, bundled beside the server.
+        await buildUploadWorker(nitro.options.output.serverDir)
         await build({
           entryPoints: ['server/fish-id/worker.ts'], bundle: true, platform: 'node', target: 'node20', format: 'cjs',
           external: ['sharp'], outfile: `${nitro.options.output.serverDir}/which-fish-worker.cjs`, logLevel: 'warning',
@@ -71,10 +73,6 @@ export default defineNuxtConfig({
     experimental: { tasks: true },
     // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
     scheduledTasks: { '0 * * * *': ['photos:purge'] },
-    hooks: {
-      // The upload worker thread starts from a file of its own, bundled beside the server.
-      compiled: nitro => buildUploadWorker(nitro.options.output.serverDir),
-    },
   },
   typescript: { strict: true },
   telemetry: false,
