@@ -40,7 +40,9 @@ describe('ordinary bad input answers 4xx, never 500', () => {
       expect(response.status, JSON.stringify(data)).toBe(400)
       expect(Object.keys(response.body.data.fieldErrors)[0]).toMatch(/^data\.(weightG|lengthCm)$/)
     }
-    expect((await post({ weightG: 0.1, lengthCm: 0.5 })).status).toBe(201)
+    // The smallest sensible values are possible but implausible together (K far outside any fish): saved once the warning is acknowledged.
+    const smallest = await owner.client.post(`/api/fish/${fish.id}/timeline`, { kind: 'measurement', occurredAt: daysAgo(1), data: { weightG: 0.1, lengthCm: 0.5 }, acknowledgedWarnings: ['condition_factor'] })
+    expect(smallest.status).toBe(201)
   })
 
   it('refuses an audit page marker that is not a real date or id (400)', async () => {

@@ -35,6 +35,9 @@ export async function startServer(port: number, extraEnv: Record<string, string 
     NUXT_SIGN_IN_IP_LIMIT: '30',
     NUXT_TEST_CLOCK: testClockSecret(),
   }
+  // A server with storage of its own keeps its jobs to itself: a job names files only its own storage holds,
+  // and the shared test database would otherwise hand it to the main test server.
+  if (extraEnv.NUXT_STORAGE_DIR && extraEnv.NUXT_JOBS_SCHEMA === undefined) baseEnv.NUXT_JOBS_SCHEMA = `pgboss_${port}`
   const childEnv = Object.fromEntries(Object.entries({ ...baseEnv, ...extraEnv }).filter(([, value]) => value !== null))
   // FINTRAIL_SERVER_ENTRY points at a copy of a build, so a rebuild in the checkout cannot pull it away mid-run.
   const entry = process.env.FINTRAIL_SERVER_ENTRY ?? resolve(ROOT, '.output/server/index.mjs')
