@@ -242,7 +242,7 @@ describe('the life record in Chromium', () => {
     await signIn(page, KEEPER, DEMO_PASSWORD)
     await page.getByTestId('pond-Garden pond').click()
     await page.getByTestId('length-weight-chart').waitFor()
-    expect(await page.getByTestId('length-weight-fits').textContent()).toMatch(/Koi:.*b = \d\.\d\d/)
+    expect(await page.getByTestId('length-weight-fits').textContent()).toMatch(/Koi\s+Cyprinus carpio:.*b = \d\.\d\d/)
     await page.getByTestId('view-table').click()
     const saffron = page.getByTestId('fish-table').locator('tr', { hasText: 'Saffron' })
     expect(await saffron.textContent()).toContain('losing weight')
