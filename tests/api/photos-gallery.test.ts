@@ -201,7 +201,7 @@ describe('a photo whose processing fails', () => {
       expect(photo.state).toBe('failed')
       const listed = (await gallery('keeper', fish.id)).body.photos[0]
       expect(listed).toMatchObject({ id: photo.id, state: 'failed' })
-      expect(listed.failureReason).toMatch(/could not make the resized copies \(ENOTDIR\).*Retry/)
+      expect(listed.failureReason).toMatch(/storage could not be written \(ENOTDIR\).*Retry/)
       // A failed photo is not anyone's profile picture yet.
       expect((await client('owner').get(`/api/fish/${fish.id}`)).body.profilePhotoId).toBeNull()
 
