@@ -42,7 +42,7 @@ async function buildSourcePond() {
     return r.body
   })
   await post(keeper.client, fish.id, { kind: 'measurement', occurredAt: '2024-05-01', data: { weightG: 1500, lengthCm: 45, lengthType: 'total' } })
-  const wrong = await post(keeper.client, fish.id, { kind: 'measurement', occurredAt: '2025-05-01', data: { weightG: 150, lengthCm: 47, lengthType: 'total' } })
+  const wrong = await post(keeper.client, fish.id, { kind: 'measurement', occurredAt: '2025-05-01', data: { weightG: 150, lengthCm: 47, lengthType: 'total' }, acknowledgedWarnings: ['condition_factor'] })
   const wrongId = wrong.id ?? wrong.entry?.id
   expect((await keeper.client.post(`/api/timeline/${wrongId}/entered-in-error`, { reason: 'Scale read in the wrong unit' })).status).toBe(200)
   await post(vet.client, fish.id, { kind: 'exam', occurredAt: '2025-06-02', data: { reason: 'Spring check', history: '', findings: [], assessment: 'Healthy', plan: 'Recheck next spring' } })
