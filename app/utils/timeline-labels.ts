@@ -1,5 +1,6 @@
 // Words the timeline shows for the stored values.
 import type { TimelineKind } from '#shared/utils/timeline-schemas'
+import type { ImportedAuthorship } from '#shared/types/timeline'
 import { formatDate, formatDay as formatCalendarDay, formatTime, type DateStyle } from '#shared/utils/dates'
 
 export const KIND_LABELS: Record<TimelineKind, string> = {
@@ -101,4 +102,13 @@ export function formatEntryTime(iso: string) {
 /** A stored calendar day (YYYY-MM-DD) shown the same way, without any time-zone shift. */
 export function formatDay(day: string) {
   return formatCalendarDay(day, readerStyle())
+}
+
+/**
+ * Who wrote an entry read in from a pond archive, in our words: the archive's person (never a local
+ * account), the archive's date and who imported it.
+ */
+export function importedAuthorText(imported: ImportedAuthorship) {
+  const who = imported.role ? `${imported.name} (${imported.role})` : imported.name
+  return `Imported — recorded by ${who}, from a pond archive made on ${formatEntryDate(imported.archiveMadeAt)}, imported by ${imported.importedBy || 'a former member'}`
 }

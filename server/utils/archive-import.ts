@@ -47,9 +47,10 @@ async function inBatches<T>(records: AsyncIterable<T>, write: (batch: T[]) => Pr
 
 /**
  * Writes a validated archive as a new pond owned by the importer, in one transaction: fish, profile
- * changes and every timeline entry keep their original authors and dates. Authors unknown here get an
- * account that cannot sign in until its owner resets the password by e-mail. Photo originals are copied
- * first and removed again if the transaction fails; their sizes are made after the commit.
+ * changes and every timeline entry keep their original dates, and their authors as the archive names them
+ * (name, role then, e-mail) in `archive_people`, tied to this import (who imported it, when the archive was
+ * made). No account is looked up or created: an entry read in is never shown as written by a local person.
+ * Photo originals are copied first and removed again if the transaction fails; their sizes are made after the commit.
  */
 export async function importArchive(archive: OpenedArchive, importerId: string) {
   const fishIds = new IdMap()
@@ -61,20 +62,19 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
   try {
     const pondId = await useDb().transaction(async (tx) => {
       await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'on', true)`)
-      for await (const person of records(archive, 'people')) {
-        if (!person.email) throw archiveRefused(`${person.name} has no e-mail address`)
-        const [existing] = await tx.select({ id: schema.users.id }).from(schema.users).where(sql`lower(${schema.users.email}) = ${person.email.toLowerCase()}`).limit(1)
-        if (existing) people.set(person.ref, existing.id)
-        else {
-          const [created] = await tx.insert(schema.users).values({ name: person.name, email: person.email.toLowerCase(), passwordHash: await hashPassword(randomBytes(32).toString('hex')) }).returning({ id: schema.users.id })
-          people.set(person.ref, created!.id)
-        }
-      }
-      const author = (ref: string) => people.get(ref)!
       const { pond } = archive.manifest
       const [created] = await tx.insert(schema.ponds).values({ name: pond.name, volumeLitres: pond.volumeLitres, notes: pond.notes }).returning({ id: schema.ponds.id })
       const newPondId = created!.id
       await tx.insert(schema.memberships).values({ pondId: newPondId, userId: importerId, role: 'owner' })
+      const [pondImport] = await tx.insert(schema.pondImports).values({
+        pondId: newPondId, importedById: importerId, exportedAt: new Date(archive.manifest.exportedAt), sourcePondName: pond.name,
+      }).returning({ id: schema.pondImports.id })
+      await inBatches(records(archive, 'people'), batch => tx.insert(schema.archivePeople).values(batch.map((person) => {
+        const id = randomUUID()
+        people.set(person.ref, id)
+        return { id, importId: pondImport!.id, name: person.name, role: person.role, email: person.email?.toLowerCase() ?? null }
+      })))
+      const author = (ref: string) => people.get(ref)!
 
       await inBatches(records(archive, 'fish'), batch => tx.insert(schema.fish).values(batch.map(f => ({
         id: fishIds.get(f.id), pondId: newPondId, name: f.name, species: f.species, scientificName: f.scientificName, variety: f.variety, sex: f.sex,
@@ -93,7 +93,7 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
         const uploadId = randomBytes(16).toString('hex')
         uploadIds.push(uploadId)
         await tx.insert(schema.photos).values({
-          id, fishId: fishIds.get(photo.fishId), uploaderId: author(photo.uploader), uploadId, originalName: photo.originalName, view: photo.view,
+          id, fishId: fishIds.get(photo.fishId), importedUploaderId: author(photo.uploader), uploadId, originalName: photo.originalName, view: photo.view,
           caption: photo.caption, takenAt: photo.takenAt ? new Date(photo.takenAt) : null, state: 'pending', mime: photo.mime, bytes: photo.bytes,
           sha256: photo.sha256, createdAt: new Date(photo.createdAt),
         })
@@ -103,19 +103,19 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
       }
 
       await inBatches(records(archive, 'fish-edits'), batch => tx.insert(schema.fishEdits).values(batch.map(e => ({
-        fishId: fishIds.get(e.fishId), userId: author(e.by), changes: e.changes, createdAt: new Date(e.createdAt),
+        fishId: fishIds.get(e.fishId), importedAuthorId: author(e.by), changes: e.changes, createdAt: new Date(e.createdAt),
       }))))
 
       // Entries go in the way the app writes them, so the record's guards (drizzle/0004) hold for imports too:
       // revision 1 first, then each amendment on top of its revision row, then "entered in error".
       await inBatches(records(archive, 'timeline'), async (batch) => {
         await tx.insert(schema.timelineEntries).values(batch.map(e => ({
-          id: entryIds.get(e.id), fishId: fishIds.get(e.fishId), pondId: newPondId, kind: e.kind, occurredAt: new Date(e.revisions[0]!.occurredAt), authorId: author(e.author),
+          id: entryIds.get(e.id), fishId: fishIds.get(e.fishId), pondId: newPondId, kind: e.kind, occurredAt: new Date(e.revisions[0]!.occurredAt), importedAuthorId: author(e.author),
           relatedFishId: fishIds.maybe(e.relatedFishId), linkedEntryId: entryIds.maybe(e.linkedEntryId), photoId: photoIds.maybe(e.photoId),
           data: e.revisions[0]!.data, revision: 1, createdAt: new Date(e.createdAt),
         })))
         await tx.insert(schema.timelineRevisions).values(batch.flatMap(e => e.revisions.map(r => ({
-          entryId: entryIds.get(e.id), revision: r.revision, occurredAt: new Date(r.occurredAt), data: r.data, authorId: author(r.author), reason: r.reason, createdAt: new Date(r.createdAt),
+          entryId: entryIds.get(e.id), revision: r.revision, occurredAt: new Date(r.occurredAt), data: r.data, importedAuthorId: author(r.author), reason: r.reason, createdAt: new Date(r.createdAt),
         }))))
         for (const e of batch) {
           const where = eq(schema.timelineEntries.id, entryIds.get(e.id))
@@ -124,11 +124,11 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
           }
           if (e.doses?.length) {
             await tx.insert(schema.treatmentDoses).values(e.doses.map(d => ({
-              entryId: entryIds.get(e.id), doseNumber: d.doseNumber, givenAt: new Date(d.givenAt), givenById: author(d.givenBy), note: d.note, createdAt: new Date(d.createdAt),
+              entryId: entryIds.get(e.id), doseNumber: d.doseNumber, givenAt: new Date(d.givenAt), importedGivenById: author(d.givenBy), note: d.note, createdAt: new Date(d.createdAt),
             })))
           }
           if (e.enteredInError) {
-            await tx.update(schema.timelineEntries).set({ enteredInError: true, errorReason: e.errorReason, errorById: e.errorBy ? author(e.errorBy) : null, errorAt: e.errorAt ? new Date(e.errorAt) : null }).where(where)
+            await tx.update(schema.timelineEntries).set({ enteredInError: true, errorReason: e.errorReason, importedErrorById: e.errorBy ? author(e.errorBy) : null, errorAt: e.errorAt ? new Date(e.errorAt) : null }).where(where)
           }
         }
       })

@@ -1,5 +1,5 @@
 import type { H3Event } from 'h3'
-import { and, eq } from 'drizzle-orm'
+import { and, eq, sql } from 'drizzle-orm'
 import type { CurrentUser, PhotoItem, PondRole } from '#shared/types'
 import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
 
@@ -66,9 +66,10 @@ export function toPhotoItem(photo: PhotoRow, uploaderName: string, context: { us
 
 /** The answer of a photo route: the row as the caller sees it, with the fish's current profile choice. */
 export async function photoItemFor(photoId: string, access: Pick<PhotoAccess, 'user' | 'role'>): Promise<PhotoItem> {
-  const [row] = await useDb().select({ photo: schema.photos, uploaderName: schema.users.name, profilePhotoId: schema.fish.profilePhotoId })
+  const [row] = await useDb().select({ photo: schema.photos, uploaderName: sql<string>`coalesce(${schema.users.name}, ${schema.archivePeople.name}, '')`, profilePhotoId: schema.fish.profilePhotoId })
     .from(schema.photos)
-    .innerJoin(schema.users, eq(schema.users.id, schema.photos.uploaderId))
+    .leftJoin(schema.users, eq(schema.users.id, schema.photos.uploaderId))
+    .leftJoin(schema.archivePeople, eq(schema.archivePeople.id, schema.photos.importedUploaderId))
     .innerJoin(schema.fish, eq(schema.fish.id, schema.photos.fishId))
     .where(eq(schema.photos.id, photoId))
     .limit(1)

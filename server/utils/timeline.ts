@@ -3,12 +3,12 @@ import { and, eq, ne, sql } from 'drizzle-orm'
 import type { z } from 'zod'
 import type { CurrentUser, FieldErrors, PondRole } from '#shared/types'
 import type { TimelineEntryView } from '#shared/types/timeline'
-import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
+import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, type EntryKind } from '#shared/utils/timeline-schemas'
 import { amendDecision, ENTRY_RULES, writeDecision } from '#shared/utils/timeline-rules'
 import { analyteFlag, enucleationConflict, eyeState, isEnucleation, isProlongedRecovery, measurementDerived, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
 import { treatmentSchedule, type GivenDose } from '#shared/utils/treatment-schedule'
 import { fieldErrorsFrom } from '#shared/utils/field-errors'
-import { dosesOf, type TimelineRow } from '../db/queries/timeline'
+import { AUTHOR_COLUMNS, authorJoins, dosesOf, type TimelineRow } from '../db/queries/timeline'
 import type { Tx } from './db'
 
 type EntryRow = typeof schema.timelineEntries.$inferSelect
@@ -85,7 +85,7 @@ export async function requireEntryAccess(event: H3Event, entryId: string): Promi
 export function refuseAmend(access: EntryAccess) {
   const { entry, user, role } = access
   if (!isEntryKind(entry.kind)) throw createError({ statusCode: 400, statusMessage: 'Not amendable here', message: 'This kind of entry is corrected where it was made' })
-  const decision = amendDecision({ userId: user.id, role }, { authorId: entry.authorId, kind: entry.kind, data: entry.data })
+  const decision = amendDecision({ userId: user.id, role }, { authorId: entry.authorId ?? '', kind: entry.kind, data: entry.data })
   if (!decision.allowed) throw createError({ statusCode: 403, statusMessage: 'Not allowed', message: decision.message })
   return entry.kind
 }
@@ -215,9 +215,19 @@ function derivedFor(row: TimelineRow, species: string): TimelineEntryView['deriv
   return {}
 }
 
-function canAmend(kind: TimelineKind, authorId: string | null, data: Record<string, unknown>, enteredInError: boolean, context: ViewContext) {
-  if (enteredInError || !authorId || !isEntryKind(kind)) return false
-  return amendDecision({ userId: context.userId, role: context.role }, { authorId, kind, data }).allowed
+function canAmend(row: TimelineRow, context: ViewContext) {
+  const { kind, author_id: authorId, data } = row
+  // Photos and pond events are changed where they are made; an imported entry has no local author, so only the owner rules apply.
+  if (row.entered_in_error || (!authorId && !row.imported_author_name) || !isEntryKind(kind)) return false
+  return amendDecision({ userId: context.userId, role: context.role }, { authorId: authorId ?? '', kind, data }).allowed
+}
+
+function importedOf(row: TimelineRow): TimelineEntryView['imported'] {
+  if (row.imported_author_name == null) return null
+  return {
+    name: row.imported_author_name, role: row.imported_author_role, archiveMadeAt: new Date(row.imported_exported_at!).toISOString(),
+    importedBy: row.imported_by_name ?? '', importedAt: new Date(row.imported_at!).toISOString(),
+  }
 }
 
 export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntryView {
@@ -227,6 +237,7 @@ export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntry
     kind: row.kind,
     occurredAt: new Date(row.occurred_at).toISOString(),
     author: row.author_id ? { id: row.author_id, name: row.author_name ?? '' } : null,
+    imported: importedOf(row),
     data: row.data,
     revision: row.revision,
     enteredInError: row.entered_in_error,
@@ -238,7 +249,7 @@ export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntry
     linkedEntryId: row.linked_entry_id,
     photo: isPhoto ? { id: row.id, caption: String(row.data.caption ?? ''), view: String(row.data.view ?? 'other') } : null,
     derived: derivedFor(row, context.species),
-    canAmend: row.viewpoint === 'subject' && canAmend(row.kind, row.author_id, row.data, row.entered_in_error, context),
+    canAmend: row.viewpoint === 'subject' && canAmend(row, context),
     createdAt: new Date(row.created_at).toISOString(),
   }
 }
@@ -246,12 +257,11 @@ export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntry
 /** The answer for an entry just written or changed, read back the same way the timeline reads it. */
 export async function entryView(entryId: string, context: ViewContext): Promise<TimelineEntryView> {
   const result = await useDb().execute<TimelineRow>(sql`
-    select e.id, e.kind::text as kind, e.occurred_at, e.author_id, author.name as author_name, e.data, e.revision, e.entered_in_error,
-      e.error_reason, marker.name as error_by_name, e.error_at, 'subject' as viewpoint, e.related_fish_id as other_fish_id,
+    select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error,
+      e.error_reason, e.error_at, 'subject' as viewpoint, e.related_fish_id as other_fish_id, ${AUTHOR_COLUMNS},
       other.name as other_fish_name, e.linked_entry_id, e.photo_id, e.created_at, '' as cursor_at, ${dosesOf(sql`e`)} as doses
     from timeline_entries e
-    left join users author on author.id = e.author_id
-    left join users marker on marker.id = e.error_by_id
+    ${authorJoins(sql`e`)}
     left join fish other on other.id = e.related_fish_id
     where e.id = ${entryId}`)
   return rowToView(result.rows[0]!, context)

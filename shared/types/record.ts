@@ -7,6 +7,8 @@ export interface RecordVet {
   entries: number
   firstAt: string
   lastAt: string
+  /** Named as author by a pond archive this pond was imported from: not a person with an account here. */
+  imported: boolean
 }
 
 export interface HealthRecordSummary {

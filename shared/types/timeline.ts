@@ -6,11 +6,26 @@ import type { TreatmentSchedule } from '../utils/treatment-schedule'
 export interface PersonRef { id: string, name: string }
 export interface FishRef { id: string, name: string }
 
+/**
+ * An entry (or photo) read in from a pond archive: its author as the archive names them, never a local
+ * account, with the archive's date and who imported it.
+ */
+export interface ImportedAuthorship {
+  name: string
+  /** Their role in the pond when the archive was made, if the archive says. */
+  role: string | null
+  archiveMadeAt: string
+  importedBy: string
+  importedAt: string
+}
+
 export interface TimelineEntryView {
   id: string
   kind: TimelineKind
   occurredAt: string
+  /** The local author; null for an imported entry (see `imported`). */
   author: PersonRef | null
+  imported: ImportedAuthorship | null
   data: Record<string, unknown>
   revision: number
   enteredInError: boolean
@@ -46,7 +61,8 @@ export interface TimelineRevisionView {
   revision: number
   occurredAt: string
   data: Record<string, unknown>
-  author: PersonRef
+  /** For a revision read in from a pond archive: the archive's person (id of that record), with `imported` true. */
+  author: PersonRef & { imported: boolean }
   reason: string | null
   createdAt: string
 }

@@ -27,9 +27,16 @@ export const ARCHIVE_LIMITS = {
   manifestBytes: 1024 * 1024,
   /** One JSON Lines record: an entry with every revision of a long lab result stays well under this. */
   lineBytes: 256 * 1024,
+  /** Photos listed by name in the manifest when their originals were missing at export (about 500 bytes each). */
+  missingPhotosListed: 1000,
   /** Problems listed when records fail their schemas (the import is refused whole either way). */
   problemsListed: 20,
 } as const
+
+/** Export choices: `keepLocation=true` keeps GPS and place names in the photo originals (off by default). */
+export const archiveExportQuery = z.strictObject({
+  keepLocation: z.enum(['true', 'false'], 'Say true or false').default('false').transform(v => v === 'true'),
+})
 
 export const DATA_FILES = ['people', 'fish', 'fish-edits', 'timeline', 'photos'] as const
 export type DataFile = typeof DATA_FILES[number]
@@ -45,8 +52,15 @@ export const manifestSchema = z.strictObject({
   pond: z.strictObject({ id, name: text(120).min(1), volumeLitres: z.number().min(0).nullable(), notes: text(4000), createdAt: isoTime }),
   files: z.record(z.string(), z.strictObject({ sha256: z.string().regex(/^[0-9a-f]{64}$/), lines: z.number().int().min(0), bytes: z.number().int().min(0) })),
   counts: z.strictObject({ people: z.number().int(), fish: z.number().int(), fishEdits: z.number().int(), timeline: z.number().int(), photos: z.number().int() }),
+  // Whether the photo originals still say where they were taken; archives made before this field had it kept.
+  photoLocation: z.enum(['removed', 'kept']).optional(),
+  // Ready photos whose original file was gone when the archive was made: left out, with the reason.
+  // Listed up to missingPhotosListed so the manifest stays small; missingPhotoCount counts them all.
+  missingPhotos: z.array(z.strictObject({ id, fishId: id, originalName: text(255), note: text(500) })).max(ARCHIVE_LIMITS.missingPhotosListed).optional(),
+  missingPhotoCount: z.number().int().min(0).optional(),
 })
 export type ArchiveManifest = z.infer<typeof manifestSchema>
+export type MissingPhoto = NonNullable<ArchiveManifest['missingPhotos']>[number]
 
 // The people who wrote the records, kept as text on import: never matched to, or made into, an account here.
 // `role` is their role in the pond when the archive was made; older archives do not carry it.

@@ -134,7 +134,7 @@ describe('pond archive export', () => {
       expect(createHash('sha256').update(contents.get(name)!).digest('hex'), name).toBe(manifest.files[name].sha256)
     }
     expect(contents.get('csv/fish.csv')!.toString()).toContain(source.chip)
-    expect(contents.get('csv/timeline.csv')!.toString()).toMatch(/measurement,1500,45,total/)
+    expect(contents.get('csv/entries-measurement.csv')!.toString()).toMatch(/,1500,45,total,/)
     const photos = [...contents.keys()].filter(name => name.startsWith('photos/'))
     expect(photos).toHaveLength(1)
     const timeline = contents.get('data/timeline.jsonl')!.toString()

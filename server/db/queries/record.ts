@@ -1,7 +1,7 @@
 // The health record's read queries: every entry of the fish up to the moment the record is printed,
 // oldest first, read in keyset pages so a fish with thousands of entries never loads in one piece.
 import { sql } from 'drizzle-orm'
-import { dosesOf, type TimelineCursor } from './timeline'
+import { AUTHOR_COLUMNS, authorJoins, dosesOf, type TimelineCursor } from './timeline'
 
 const CURSOR_TEXT = sql.raw(`'YYYY-MM-DD"T"HH24:MI:SS.US"Z"'`)
 
@@ -27,20 +27,19 @@ export function recordPageSql(fishId: string, options: { asOf: string, cursor: T
   const after = options.cursor ? sql`and (e.occurred_at, e.id) > (${options.cursor.at}::timestamptz, ${options.cursor.id}::uuid)` : sql``
   return sql`
     select page.*, to_char(page.occurred_at at time zone 'UTC', ${CURSOR_TEXT}) as cursor_at,
-      author.name as author_name, marker.name as error_by_name, other.name as other_fish_name, ${dosesOf(sql`page`)} as doses
+      ${AUTHOR_COLUMNS}, other.name as other_fish_name, ${dosesOf(sql`page`)} as doses
     from (
-      (select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
-          e.error_by_id, e.error_at, 'subject'::text as viewpoint, e.related_fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
+      (select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.imported_author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
+          e.error_by_id, e.imported_error_by_id, e.error_at, 'subject'::text as viewpoint, e.related_fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
         from timeline_entries e where ${own} ${after}
         order by e.occurred_at, e.id limit ${n})
       union all
-      (select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
-          e.error_by_id, e.error_at, 'related'::text as viewpoint, e.fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
+      (select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.imported_author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
+          e.error_by_id, e.imported_error_by_id, e.error_at, 'related'::text as viewpoint, e.fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
         from timeline_entries e where ${related} ${after}
         order by e.occurred_at, e.id limit ${n})
     ) page
-    left join users author on author.id = page.author_id
-    left join users marker on marker.id = page.error_by_id
+    ${authorJoins(sql`page`)}
     left join fish other on other.id = page.other_fish_id
     order by page.occurred_at, page.id
     limit ${n}`
@@ -49,6 +48,8 @@ export function recordPageSql(fishId: string, options: { asOf: string, cursor: T
 export interface RecordAuthorRow extends Record<string, unknown> {
   author_id: string
   name: string
+  /** Named by a pond archive this pond was imported from, not a local account. */
+  imported: boolean
   kind: string
   status: string | null
   instructed_by: string | null
@@ -63,9 +64,10 @@ export interface RecordAuthorRow extends Record<string, unknown> {
  */
 export function recordClinicalAuthorsSql(fishId: string, kinds: readonly string[]) {
   return sql<RecordAuthorRow>`
-    select u.id as author_id, u.name, e.kind::text as kind, e.data->>'status' as status, e.data->>'instructedById' as instructed_by,
+    select coalesce(u.id, ia.id) as author_id, coalesce(u.name, ia.name) as name, ia.id is not null as imported,
+      e.kind::text as kind, e.data->>'status' as status, e.data->>'instructedById' as instructed_by,
       count(*)::int as entries, min(e.occurred_at) as first_at, max(e.occurred_at) as last_at
-    from timeline_entries e join users u on u.id = e.author_id
+    from timeline_entries e left join users u on u.id = e.author_id left join archive_people ia on ia.id = e.imported_author_id
     where e.fish_id = ${fishId} and not e.entered_in_error and e.kind = any(${sql.param(kinds)}::timeline_kind[])
-    group by u.id, u.name, e.kind, e.data->>'status', e.data->>'instructedById'`
+    group by coalesce(u.id, ia.id), coalesce(u.name, ia.name), ia.id is not null, e.kind, e.data->>'status', e.data->>'instructedById'`
 }

@@ -12,6 +12,12 @@ export interface TimelineRow extends Record<string, unknown> {
   cursor_at: string
   author_id: string | null
   author_name: string | null
+  /** Set when the entry was read in from a pond archive (the author is then the archive's person, author_id null). */
+  imported_author_name: string | null
+  imported_author_role: string | null
+  imported_exported_at: Date | null
+  imported_at: Date | null
+  imported_by_name: string | null
   data: Record<string, unknown>
   revision: number
   entered_in_error: boolean
@@ -28,13 +34,33 @@ export interface TimelineRow extends Record<string, unknown> {
   doses?: { doseNumber: number, givenAt: string, givenBy: { id: string, name: string } | null, note: string }[] | null
 }
 
-/** The doses given of a treatment course (rows of `alias`, a timeline entry or page row), oldest dose first. */
+/** The doses given of a treatment course (rows of `alias`, a timeline entry or page row), oldest dose first; the giver local or from an archive. */
 export function dosesOf(alias: SQL) {
   return sql`case when ${alias}.kind::text = 'treatment' then (select coalesce(json_agg(json_build_object('doseNumber', d.dose_number,
-      'givenAt', to_char(d.given_at at time zone 'UTC', ${CURSOR_TEXT}), 'givenBy', json_build_object('id', giver.id, 'name', giver.name), 'note', d.note)
+      'givenAt', to_char(d.given_at at time zone 'UTC', ${CURSOR_TEXT}),
+      'givenBy', json_build_object('id', coalesce(giver.id, imported_giver.id), 'name', coalesce(giver.name, imported_giver.name)), 'note', d.note)
       order by d.dose_number), '[]'::json)
-    from treatment_doses d join users giver on giver.id = d.given_by_id where d.entry_id = ${alias}.id) end`
+    from treatment_doses d left join users giver on giver.id = d.given_by_id left join archive_people imported_giver on imported_giver.id = d.imported_given_by_id
+    where d.entry_id = ${alias}.id) end`
 }
+
+/**
+ * Who wrote a row (alias: a timeline entry or page row with author_id, imported_author_id, error_by_id and
+ * imported_error_by_id): the local person, or the archive's person with the import it came in with.
+ */
+export function authorJoins(alias: SQL) {
+  return sql`left join users author on author.id = ${alias}.author_id
+    left join users marker on marker.id = ${alias}.error_by_id
+    left join archive_people imported_author on imported_author.id = ${alias}.imported_author_id
+    left join pond_imports imported_from on imported_from.id = imported_author.import_id
+    left join users importer on importer.id = imported_from.imported_by_id
+    left join archive_people imported_marker on imported_marker.id = ${alias}.imported_error_by_id`
+}
+
+/** The columns authorJoins makes available, named as TimelineRow names them. */
+export const AUTHOR_COLUMNS = sql.raw(`author.name as author_name, coalesce(marker.name, imported_marker.name) as error_by_name,
+  imported_author.name as imported_author_name, imported_author.role::text as imported_author_role,
+  imported_from.exported_at as imported_exported_at, imported_from.created_at as imported_at, importer.name as imported_by_name`)
 
 const CURSOR_TEXT = sql.raw(`'YYYY-MM-DD"T"HH24:MI:SS.US"Z"'`)
 
@@ -52,24 +78,24 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
   const branches: SQL[] = []
   if (all || entryKinds.length) {
     const kindFilter = all ? sql`` : sql`and e.kind = any(${sql.param(entryKinds)}::timeline_kind[])`
-    branches.push(sql`(select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
-        e.error_by_id, e.error_at, 'subject'::text as viewpoint, e.related_fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
+    branches.push(sql`(select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.imported_author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
+        e.error_by_id, e.imported_error_by_id, e.error_at, 'subject'::text as viewpoint, e.related_fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
       from timeline_entries e
       where e.fish_id = ${fishId} ${kindFilter} ${before(sql`e.occurred_at`, sql`e.id`)}
       order by e.occurred_at desc nulls last, e.id desc nulls last limit ${n})`)
   }
   if (all || kinds.includes('companion')) {
-    branches.push(sql`(select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
-        e.error_by_id, e.error_at, 'related'::text as viewpoint, e.fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
+    branches.push(sql`(select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.imported_author_id, e.data, e.revision, e.entered_in_error, e.error_reason,
+        e.error_by_id, e.imported_error_by_id, e.error_at, 'related'::text as viewpoint, e.fish_id as other_fish_id, e.linked_entry_id, e.photo_id, e.created_at
       from timeline_entries e
       where e.related_fish_id = ${fishId} and e.kind = 'companion' and e.fish_id <> ${fishId} ${before(sql`e.occurred_at`, sql`e.id`)}
       order by e.occurred_at desc nulls last, e.id desc nulls last limit ${n})`)
   }
   if (all || kinds.includes('photo')) {
     const at = sql`coalesce(p.taken_at, p.created_at)`
-    branches.push(sql`(select p.id, 'photo'::text as kind, ${at} as occurred_at, p.uploader_id as author_id,
+    branches.push(sql`(select p.id, 'photo'::text as kind, ${at} as occurred_at, p.uploader_id as author_id, p.imported_uploader_id as imported_author_id,
         jsonb_build_object('caption', p.caption, 'view', p.view) as data, 1 as revision, false as entered_in_error, null::text as error_reason,
-        null::uuid as error_by_id, null::timestamptz as error_at, 'subject'::text as viewpoint, null::uuid as other_fish_id,
+        null::uuid as error_by_id, null::uuid as imported_error_by_id, null::timestamptz as error_at, 'subject'::text as viewpoint, null::uuid as other_fish_id,
         null::uuid as linked_entry_id, p.id as photo_id, p.created_at
       from photos p
       where p.fish_id = ${fishId} and p.state = 'ready' and p.removed_at is null ${before(at, sql`p.id`)}
@@ -77,9 +103,9 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
   }
   if (all || kinds.includes('pond_event')) {
     // Whole-pond events of the ponds this fish has lived in, kept to the moments it lived there (migration 0018).
-    branches.push(sql`(select pe.id, 'pond_event'::text as kind, pe.occurred_at, pe.author_id,
+    branches.push(sql`(select pe.id, 'pond_event'::text as kind, pe.occurred_at, pe.author_id, null::uuid as imported_author_id,
         pe.data || jsonb_build_object('eventKind', pe.kind, 'volumeLitres', pe.volume_litres, 'pondId', pe.pond_id, 'pondName', pond.name) as data,
-        1 as revision, pe.entered_in_error, pe.error_reason, pe.error_by_id, pe.error_at, 'subject'::text as viewpoint, null::uuid as other_fish_id,
+        1 as revision, pe.entered_in_error, pe.error_reason, pe.error_by_id, null::uuid as imported_error_by_id, pe.error_at, 'subject'::text as viewpoint, null::uuid as other_fish_id,
         null::uuid as linked_entry_id, null::uuid as photo_id, pe.created_at
       from pond_events pe join ponds pond on pond.id = pe.pond_id
       where pe.pond_id in (select f.pond_id from fish f where f.id = ${fishId}
@@ -90,10 +116,9 @@ export function timelinePageSql(fishId: string, options: { kinds: readonly Timel
   if (!branches.length) return null
   return sql`
     select page.*, to_char(page.occurred_at at time zone 'UTC', ${CURSOR_TEXT}) as cursor_at,
-      author.name as author_name, marker.name as error_by_name, other.name as other_fish_name, ${dosesOf(sql`page`)} as doses
+      ${AUTHOR_COLUMNS}, other.name as other_fish_name, ${dosesOf(sql`page`)} as doses
     from (${sql.join(branches, sql` union all `)}) page
-    left join users author on author.id = page.author_id
-    left join users marker on marker.id = page.error_by_id
+    ${authorJoins(sql`page`)}
     left join fish other on other.id = page.other_fish_id
     order by page.occurred_at desc nulls last, page.id desc nulls last
     limit ${n}`
@@ -128,10 +153,11 @@ export function standingFactsSql(fishId: string, today: string, recentFrom: stri
         order by e.data->>'status', e.occurred_at desc), '[]'::json)
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'problem' and ${valid} and e.data->>'status' in ('active', 'suspected')) as problems,
-    (select coalesce(json_agg(json_build_object('entryId', e.id, 'at', e.occurred_at, 'data', e.data, 'authorName', a.name,
-          'authorIsVet', exists (select 1 from memberships m where m.pond_id = e.pond_id and m.user_id = e.author_id and m.role = 'vet'),
+    (select coalesce(json_agg(json_build_object('entryId', e.id, 'at', e.occurred_at, 'data', e.data, 'authorName', coalesce(a.name, ia.name),
+          -- Read in from an archive: a vet there when the archive was made.
+          'authorIsVet', exists (select 1 from memberships m where m.pond_id = e.pond_id and m.user_id = e.author_id and m.role = 'vet') or ia.role = 'vet',
           'doses', ${dosesOf(sql`e`)}) order by e.data->>'startOn' desc), '[]'::json)
-      from timeline_entries e join users a on a.id = e.author_id
+      from timeline_entries e left join users a on a.id = e.author_id left join archive_people ia on ia.id = e.imported_author_id
       where e.fish_id = ${fishId} and e.kind = 'treatment' and ${valid} and e.data->>'startOn' <= ${today}
         -- A course that ended in the last week stays while it has missed doses; the exact rule is in the route.
         and coalesce(e.data->>'endOn', to_char((e.data->>'startOn')::date + ((e.data->>'durationDays')::int - 1), ${UTC_DAY}), '9999-12-31') >= ${recentFrom}) as treatments,
@@ -156,8 +182,8 @@ export function standingFactsSql(fishId: string, today: string, recentFrom: stri
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'measurement' and ${valid} and e.data ? 'weightG' and e.data ? 'lengthCm'
       order by e.occurred_at desc nulls last, e.id desc nulls last limit 1) as latest_pair,
-    (select json_build_object('entryId', e.id, 'at', e.occurred_at, 'by', u.name, 'reason', e.data->>'reason')
-      from timeline_entries e join users u on u.id = e.author_id
+    (select json_build_object('entryId', e.id, 'at', e.occurred_at, 'by', coalesce(u.name, ia.name), 'reason', e.data->>'reason')
+      from timeline_entries e left join users u on u.id = e.author_id left join archive_people ia on ia.id = e.imported_author_id
       where e.fish_id = ${fishId} and e.kind = 'exam' and ${valid}
       order by e.occurred_at desc nulls last, e.id desc nulls last limit 1) as last_exam,
     (select coalesce(json_agg(json_build_object('entryId', e.id, 'data', e.data,

@@ -3,6 +3,7 @@ import { boolean, check, date, doublePrecision, index, integer, jsonb, pgEnum, p
 import { timestamps } from './columns'
 import { ponds } from './ponds'
 import { users } from './users'
+import { archivePeople } from './archive-imports'
 
 export const fishSpecies = pgEnum('fish_species', ['koi', 'goldfish', 'other'])
 export const fishSex = pgEnum('fish_sex', ['unknown', 'male', 'female'])
@@ -42,12 +43,15 @@ export type FishFieldChange = { field: string, from: unknown, to: unknown }
 export const fishEdits = pgTable('fish_edits', {
   id: uuid('id').primaryKey().defaultRandom(),
   fishId: uuid('fish_id').notNull().references(() => fish.id),
-  userId: uuid('user_id').notNull().references(() => users.id),
+  userId: uuid('user_id').references(() => users.id),
+  importedAuthorId: uuid('imported_author_id').references(() => archivePeople.id),
   changes: jsonb('changes').$type<FishFieldChange[]>().notNull(),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 }, t => [
   index('fish_edits_fish_idx').on(t.fishId, t.createdAt),
   index('fish_edits_user_idx').on(t.userId),
+  index('fish_edits_imported_author_idx').on(t.importedAuthorId),
+  check('fish_edits_one_author', sql`num_nonnulls(${t.userId}, ${t.importedAuthorId}) = 1`),
 ])
 
 // Kept current by a trigger on timeline_entries (migration 0003), so the fish table needs no per-fish subqueries.

@@ -1,7 +1,8 @@
 import { sql } from 'drizzle-orm'
-import { customType, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { check, customType, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
 import { fish } from './fish'
 import { users } from './users'
+import { archivePeople } from './archive-imports'
 
 export const photoView = pgEnum('photo_view', ['top', 'left', 'right', 'closeup', 'other'])
 export const photoState = pgEnum('photo_state', ['pending', 'ready', 'failed'])
@@ -11,7 +12,8 @@ export type PhotoVariant = { longSide: number, width: number, height: number, fo
 export const photos = pgTable('photos', {
   id: uuid('id').primaryKey().defaultRandom(),
   fishId: uuid('fish_id').notNull().references(() => fish.id),
-  uploaderId: uuid('uploader_id').notNull().references(() => users.id),
+  uploaderId: uuid('uploader_id').references(() => users.id),
+  importedUploaderId: uuid('imported_uploader_id').references(() => archivePeople.id),
   // The tus upload id: a retried finish hook finds the same row instead of adding a second one.
   uploadId: varchar('upload_id', { length: 80 }).notNull().unique(),
   originalName: varchar('original_name', { length: 255 }).notNull().default(''),
@@ -33,6 +35,8 @@ export const photos = pgTable('photos', {
 }, t => [
   index('photos_fish_idx').on(t.fishId, t.createdAt),
   index('photos_uploader_idx').on(t.uploaderId),
+  index('photos_imported_uploader_idx').on(t.importedUploaderId),
+  check('photos_one_uploader', sql`num_nonnulls(${t.uploaderId}, ${t.importedUploaderId}) = 1`),
   index('photos_removed_by_idx').on(t.removedById),
   // The same bytes twice on one fish are one photo: a client that re-sends a finished upload gets the first back.
   uniqueIndex('photos_fish_sha256_live_unique').on(t.fishId, t.sha256).where(sql`${t.removedAt} is null and ${t.sha256} is not null`),

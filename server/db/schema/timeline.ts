@@ -1,4 +1,6 @@
-import { boolean, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import { sql } from 'drizzle-orm'
+import { boolean, check, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import { archivePeople } from './archive-imports'
 import { fish } from './fish'
 import { ponds } from './ponds'
 import { users } from './users'
@@ -18,7 +20,9 @@ export const timelineEntries = pgTable('timeline_entries', {
   pondId: uuid('pond_id').notNull().references(() => ponds.id),
   kind: timelineKind('kind').notNull(),
   occurredAt: timestamp('occurred_at', { withTimezone: true }).notNull(),
-  authorId: uuid('author_id').notNull().references(() => users.id),
+  // Written here: the local author. Read in from a pond archive: the archive's person, never a local account.
+  authorId: uuid('author_id').references(() => users.id),
+  importedAuthorId: uuid('imported_author_id').references(() => archivePeople.id),
   relatedFishId: uuid('related_fish_id').references(() => fish.id),
   linkedEntryId: uuid('linked_entry_id'),
   photoId: uuid('photo_id').references(() => photos.id),
@@ -30,6 +34,7 @@ export const timelineEntries = pgTable('timeline_entries', {
   enteredInError: boolean('entered_in_error').notNull().default(false),
   errorReason: text('error_reason'),
   errorById: uuid('error_by_id').references(() => users.id),
+  importedErrorById: uuid('imported_error_by_id').references(() => archivePeople.id),
   errorAt: timestamp('error_at', { withTimezone: true }),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
@@ -44,6 +49,9 @@ export const timelineEntries = pgTable('timeline_entries', {
   index('timeline_photo_idx').on(t.photoId),
   index('timeline_error_by_idx').on(t.errorById),
   index('timeline_visit_idx').on(t.visitId),
+  index('timeline_imported_author_idx').on(t.importedAuthorId),
+  index('timeline_imported_error_by_idx').on(t.importedErrorById),
+  check('timeline_entries_one_author', sql`num_nonnulls(${t.authorId}, ${t.importedAuthorId}) = 1`),
 ])
 
 // Every revision ever written, the first included; rows here are never updated or deleted.
@@ -53,12 +61,15 @@ export const timelineRevisions = pgTable('timeline_revisions', {
   revision: integer('revision').notNull(),
   occurredAt: timestamp('occurred_at', { withTimezone: true }).notNull(),
   data: jsonb('data').$type<Record<string, unknown>>().notNull(),
-  authorId: uuid('author_id').notNull().references(() => users.id),
+  authorId: uuid('author_id').references(() => users.id),
+  importedAuthorId: uuid('imported_author_id').references(() => archivePeople.id),
   reason: text('reason'),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 }, t => [
   uniqueIndex('timeline_revisions_entry_revision_unique').on(t.entryId, t.revision),
   index('timeline_revisions_author_idx').on(t.authorId),
+  index('timeline_revisions_imported_author_idx').on(t.importedAuthorId),
+  check('timeline_revisions_one_author', sql`num_nonnulls(${t.authorId}, ${t.importedAuthorId}) = 1`),
 ])
 
 // Each dose of a treatment course checked off as given: who gave it and when. A dose is recorded
@@ -68,10 +79,13 @@ export const treatmentDoses = pgTable('treatment_doses', {
   entryId: uuid('entry_id').notNull().references(() => timelineEntries.id),
   doseNumber: integer('dose_number').notNull(),
   givenAt: timestamp('given_at', { withTimezone: true }).notNull(),
-  givenById: uuid('given_by_id').notNull().references(() => users.id),
+  givenById: uuid('given_by_id').references(() => users.id),
+  importedGivenById: uuid('imported_given_by_id').references(() => archivePeople.id),
   note: text('note').notNull().default(''),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 }, t => [
   uniqueIndex('treatment_doses_entry_dose_unique').on(t.entryId, t.doseNumber),
   index('treatment_doses_given_by_idx').on(t.givenById),
+  index('treatment_doses_imported_given_by_idx').on(t.importedGivenById),
+  check('treatment_doses_one_giver', sql`num_nonnulls(${t.givenById}, ${t.importedGivenById}) = 1`),
 ])

@@ -7,9 +7,10 @@ export default defineEventHandler(async (event): Promise<FishPhotos> => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   const { fish, role, user, readOnly } = await requireFishRole(event, fishId)
   const cutoff = new Date(Date.now() - RECOVERABLE_DAYS * 86_400_000)
-  const rows = await useDb().select({ photo: schema.photos, uploaderName: schema.users.name })
+  const rows = await useDb().select({ photo: schema.photos, uploaderName: sql<string>`coalesce(${schema.users.name}, ${schema.archivePeople.name}, '')` })
     .from(schema.photos)
-    .innerJoin(schema.users, eq(schema.users.id, schema.photos.uploaderId))
+    .leftJoin(schema.users, eq(schema.users.id, schema.photos.uploaderId))
+    .leftJoin(schema.archivePeople, eq(schema.archivePeople.id, schema.photos.importedUploaderId))
     .where(and(eq(schema.photos.fishId, fishId), or(isNull(schema.photos.removedAt), gt(schema.photos.removedAt, cutoff))))
     // Newest first by the day the photo was taken, the upload time standing in where the photo has no date.
     .orderBy(desc(sql`coalesce(${schema.photos.takenAt}, ${schema.photos.createdAt})`), desc(schema.photos.createdAt))

@@ -5,13 +5,15 @@ import type { TimelineRevisionView } from '#shared/types/timeline'
 export default defineEventHandler(async (event): Promise<TimelineRevisionView[]> => {
   const { entryId } = paramsValidated(event, entryIdParams, 'Entry not found')
   await requireEntryAccess(event, entryId)
-  const rows = await useDb().select({ revision: schema.timelineRevisions, authorName: schema.users.name })
+  const rows = await useDb().select({ revision: schema.timelineRevisions, authorName: schema.users.name, importedName: schema.archivePeople.name })
     .from(schema.timelineRevisions)
-    .innerJoin(schema.users, eq(schema.users.id, schema.timelineRevisions.authorId))
+    .leftJoin(schema.users, eq(schema.users.id, schema.timelineRevisions.authorId))
+    .leftJoin(schema.archivePeople, eq(schema.archivePeople.id, schema.timelineRevisions.importedAuthorId))
     .where(eq(schema.timelineRevisions.entryId, entryId))
     .orderBy(asc(schema.timelineRevisions.revision))
-  return rows.map(({ revision: r, authorName }) => ({
+  return rows.map(({ revision: r, authorName, importedName }) => ({
     revision: r.revision, occurredAt: r.occurredAt.toISOString(), data: r.data,
-    author: { id: r.authorId, name: authorName }, reason: r.reason, createdAt: r.createdAt.toISOString(),
+    author: { id: (r.authorId ?? r.importedAuthorId)!, name: authorName ?? importedName ?? '', imported: !r.authorId },
+    reason: r.reason, createdAt: r.createdAt.toISOString(),
   }))
 })

@@ -33,7 +33,7 @@ function clinicians(rows: RecordAuthorRow[]): RecordVet[] {
     if (!isClinicalEntry(row.kind as EntryKind, { status: row.status ?? undefined, instructedById: row.instructed_by ?? undefined })) continue
     const [first, last] = [new Date(row.first_at).toISOString(), new Date(row.last_at).toISOString()]
     const known = byAuthor.get(row.author_id)
-    if (!known) byAuthor.set(row.author_id, { name: row.name, entries: row.entries, firstAt: first, lastAt: last })
+    if (!known) byAuthor.set(row.author_id, { name: row.name, entries: row.entries, firstAt: first, lastAt: last, imported: row.imported })
     else Object.assign(known, { entries: known.entries + row.entries, firstAt: first < known.firstAt ? first : known.firstAt, lastAt: last > known.lastAt ? last : known.lastAt })
   }
   return [...byAuthor.values()].sort((a, b) => b.lastAt.localeCompare(a.lastAt))
