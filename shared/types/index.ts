@@ -1,16 +1,14 @@
 import type { DecimalMark } from '../utils/decimal'
 import type { PondVolumeMeasurement } from '../utils/pond-volume-schemas'
+import type { FISH_SPECIES, FISH_STATUSES, OUTGOING_MAIL_STATUSES, PHOTO_STATES, PHOTO_VIEWS, POND_ROLES, UNIT_SYSTEMS, FISH_SEXES } from '../utils/enums'
 
-export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
 export type PondRole = typeof POND_ROLES[number]
 
-export const FISH_SPECIES = ['koi', 'goldfish', 'other'] as const
 export type FishSpecies = typeof FISH_SPECIES[number]
-export const FISH_SEXES = ['unknown', 'male', 'female'] as const
-export const FISH_STATUSES = ['alive', 'deceased', 'rehomed'] as const
+export type FishSex = typeof FISH_SEXES[number]
 export type FishStatus = typeof FISH_STATUSES[number]
 
-export type UnitSystem = 'metric' | 'us'
+export type UnitSystem = typeof UNIT_SYSTEMS[number]
 
 export type FieldErrors = Record<string, string[]>
 
@@ -80,7 +78,7 @@ export interface FishProfile {
   species: FishSpecies
   scientificName: string
   variety: string
-  sex: 'unknown' | 'male' | 'female'
+  sex: FishSex
   hatchYear: number | null
   hatchYearEstimated: boolean
   ageYears: number | null
@@ -103,9 +101,8 @@ export interface FishEditRecord {
   changes: { field: string, from: unknown, to: unknown }[]
 }
 
-export const PHOTO_VIEWS = ['top', 'left', 'right', 'closeup', 'other'] as const
 export type PhotoView = typeof PHOTO_VIEWS[number]
-export type PhotoState = 'pending' | 'ready' | 'failed'
+export type PhotoState = typeof PHOTO_STATES[number]
 
 export interface PhotoItem {
   id: string
@@ -141,7 +138,7 @@ export interface PhotoFocus { x: number, y: number }
 
 /** Where the e-mail announcing an offer stands, shown to its sender with a resend button. */
 export interface OfferMailState {
-  status: 'queued' | 'sent' | 'failed'
+  status: typeof OUTGOING_MAIL_STATUSES[number]
   attempts: number
   /** A plain reason when the last attempt failed; the raw SMTP error stays in the server log. */
   lastError: string | null
