@@ -25,3 +25,16 @@ random_secret() {
 }
 
 json_array() { node -e 'process.stdout.write(JSON.stringify(process.argv.slice(1)))' -- "$@"; }
+
+# Closes every file this shell has open beyond stdin, stdout and stderr, then runs the command in its place:
+# call it in a subshell, `( exec_without_inherited_fds cmd ... )`. A server that outlives the script
+# (PostgreSQL, or the mail service after `npm test -- --setup-only`) must not keep a file it inherited: started
+# under `flock heavy.lock npm test ...`, it would hold that lock for as long as it runs.
+exec_without_inherited_fds() {
+  local fd
+  for fd in /proc/$BASHPID/fd/*; do
+    fd="${fd##*/}"
+    if [ "$fd" -gt 2 ]; then eval "exec $fd>&-"; fi
+  done
+  exec "$@"
+}

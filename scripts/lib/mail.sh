@@ -7,11 +7,11 @@ start_mail_server() {
   require_free_port "$inbox_port" "mail inbox"
   mkdir -p "$mail_dir"
   if [ -n "$log" ]; then
-    SMTP_PORT="$smtp_port" INBOX_PORT="$inbox_port" MAIL_DIR="$mail_dir" \
-      node "$ROOT/scripts/mail-server.mjs" >"$log" 2>&1 &
+    (exec_without_inherited_fds env SMTP_PORT="$smtp_port" INBOX_PORT="$inbox_port" MAIL_DIR="$mail_dir" \
+      node "$ROOT/scripts/mail-server.mjs") >"$log" 2>&1 &
   else
-    SMTP_PORT="$smtp_port" INBOX_PORT="$inbox_port" MAIL_DIR="$mail_dir" \
-      node "$ROOT/scripts/mail-server.mjs" &
+    (exec_without_inherited_fds env SMTP_PORT="$smtp_port" INBOX_PORT="$inbox_port" MAIL_DIR="$mail_dir" \
+      node "$ROOT/scripts/mail-server.mjs") &
   fi
   MAIL_PID=$!
   wait_for_port "$smtp_port" "$MAIL_PID" "the mail server"

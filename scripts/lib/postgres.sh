@@ -139,12 +139,12 @@ pg_cluster_start() {
       say "Reusing the running '$name' database cluster (port $port, files in $dir)."
     else
       say "Restarting the '$name' database cluster on port $port (files in $dir) ..."
-      pg_run "$PG_BIN/pg_ctl" -D "$dir" -m fast -w restart -l "$dir/server.log" >/dev/null ||
+      (exec_without_inherited_fds "${PG_AS[@]}" "$PG_BIN/pg_ctl" -D "$dir" -m fast -w restart -l "$dir/server.log") >/dev/null ||
         die "could not restart PostgreSQL; see $dir/server.log"
     fi
   else
     say "Starting the '$name' database cluster on 127.0.0.1:$port (files in $dir) ..."
-    if ! pg_run "$PG_BIN/pg_ctl" -D "$dir" -w -t 60 -l "$dir/server.log" start >/dev/null; then
+    if ! (exec_without_inherited_fds "${PG_AS[@]}" "$PG_BIN/pg_ctl" -D "$dir" -w -t 60 -l "$dir/server.log" start) >/dev/null; then
       tail -n 20 "$dir/server.log" >&2 || true
       die "PostgreSQL did not start (port $port busy?); log: $dir/server.log"
     fi
