@@ -2,8 +2,7 @@ import { eq } from 'drizzle-orm'
 import type { CurrentUser, PhotoItem, PondRole } from '#shared/types'
 import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
 import type { PhotoAccess } from './access'
-
-export type PhotoRow = typeof schema.photos.$inferSelect
+import type { PhotoRow } from '#shared/types/rows'
 
 // Owners photograph their fish, keepers record photos, vets photograph at exams.
 export const PHOTO_ADD_ROLES: readonly PondRole[] = ['owner', 'keeper', 'vet']

@@ -12,8 +12,7 @@ import { fieldErrorsFrom } from '#shared/utils/field-errors'
 import { dosesOf, type TimelineRow } from '../db/queries/timeline'
 import type { Tx } from './db'
 import type { EntryAccess } from './access'
-
-type FishRow = typeof schema.fish.$inferSelect
+import type { FishRow } from '#shared/types/rows'
 
 export function isEntryKind(kind: string): kind is EntryKind {
   return (ENTRY_KINDS as readonly string[]).includes(kind)
