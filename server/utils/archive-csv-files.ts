@@ -6,7 +6,8 @@ import { stringify } from 'csv-stringify'
 import type { ZipFile } from 'yazl'
 import type { ArchiveRecord } from '#shared/utils/archive-schema'
 import { csvCell, dataValueAt, fileSlug, kindColumns, spreadsheetTime, type KindColumns } from '#shared/utils/archive-csv'
-import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS } from '#shared/utils/timeline-schemas'
+import { ENTRY_DATA_SCHEMAS } from '#shared/utils/timeline-schemas'
+import { ENTRY_KINDS } from '#shared/utils/enums'
 
 export interface ArchiveIndex {
   fish: Map<string, { name: string, microchip: string | null }>
