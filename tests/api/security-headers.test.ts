@@ -99,7 +99,7 @@ describe('security headers', () => {
     expect(long.body.data.fieldErrors.name).toBeDefined()
   })
 
-  it('upgrade every request to https only when the public origin is https', async () => {
+  it('upgrade every request to https only when the public origin is https', { timeout: 90_000 }, async () => {
     const server = await startServer(MAIN_PORT + 16, { NUXT_APP_ORIGIN: 'https://fintrail.example' })
     try {
       const { headers } = await page(new ApiClient(server.url), '/sign-in')

@@ -147,7 +147,7 @@ describe('the Content-Security-Policy in Chromium', () => {
     await page.close()
   })
 
-  it('shows every page to the demo owner, keeper and vet without a violation', { timeout: 240_000 }, async () => {
+  it('shows every page to the demo owner, keeper and vet without a violation', { timeout: 480_000 }, async () => {
     const { garden, fish } = await idsOf()
     for (const email of [OWNER, KEEPER, VET]) {
       const { page, list } = await watchedPage()
