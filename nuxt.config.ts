@@ -2,8 +2,12 @@
 import { build } from 'esbuild'
 import { buildUploadWorker } from './scripts/build-upload-worker'
 
+// CSP source keywords keep their quotes in the header.
+const SELF = '\'self\''
+const NONE = '\'none\''
+
 export default defineNuxtConfig({
-  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint'],
+  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint', 'nuxt-security'],
   devtools: { enabled: false },
   app: {
     head: {
@@ -91,5 +95,55 @@ export default defineNuxtConfig({
     },
   },
   eslint: { config: { stylistic: true } },
+  // Security headers only (nuxt-security). Its request guards are off: the app has its own sign-in limiter,
+  // same-origin check and text-input check, and a size limiter or XSS filter would refuse tus chunks,
+  // archives and ordinary JSON. Upgrading requests to https is added at run time for an https origin
+  // (server/plugins/security-origin.ts): on a plain-http LAN address it would break every asset.
+  security: {
+    headers: {
+      contentSecurityPolicy: {
+        'default-src': [SELF],
+        'base-uri': [NONE],
+        'connect-src': [SELF],
+        // Fonts are bundled files; data: covers small fonts a stylesheet inlines.
+        'font-src': [SELF, 'data:'],
+        'form-action': [SELF],
+        'frame-ancestors': [NONE],
+        'frame-src': [NONE],
+        // blob: for the previews of a chosen photo (uploader thumbnails, which-fish); data: for inline icons.
+        'img-src': [SELF, 'data:', 'blob:'],
+        'manifest-src': [SELF],
+        'media-src': [SELF],
+        'object-src': [NONE],
+        // Only scripts carrying this response's nonce, and what they load ('strict-dynamic'); no eval.
+        'script-src': [SELF, '\'strict-dynamic\'', '\'nonce-{{nonce}}\''],
+        'script-src-attr': [NONE],
+        // Vue, Uppy and Chart.js set style attributes; styles cannot run code.
+        'style-src': [SELF, '\'unsafe-inline\''],
+        'worker-src': [SELF],
+        'upgrade-insecure-requests': false,
+      },
+      crossOriginEmbedderPolicy: 'credentialless',
+      // Stricter than no-referrer would break our own POSTs: Chromium then sends "Origin: null",
+      // which the same-origin check refuses.
+      referrerPolicy: 'strict-origin-when-cross-origin',
+      // Browsers ignore it over plain http; behind https it keeps the next visits on https.
+      strictTransportSecurity: { maxAge: 15552000, includeSubdomains: false },
+      xContentTypeOptions: 'nosniff',
+      xFrameOptions: 'DENY',
+      // The camera stays allowed for this site only: taking a photo at the pond side.
+      permissionsPolicy: { 'camera': ['self'], 'display-capture': [], 'fullscreen': [], 'geolocation': [], 'microphone': [] },
+    },
+    nonce: true,
+    sri: true,
+    hidePoweredBy: true,
+    removeLoggers: false,
+    rateLimiter: false,
+    requestSizeLimiter: false,
+    xssValidator: false,
+    corsHandler: false,
+    allowedMethodsRestricter: false,
+    csrf: false,
+  },
   tailwindcss: { cssPath: '~/assets/css/main.css', viewer: false },
 })
