@@ -60,6 +60,11 @@ export default defineNuxtConfig({
       cookie: { secure: true, sameSite: 'lax', httpOnly: true },
     },
   },
+  experimental: {
+    // A link's page code loads when the person is about to follow it (pointer over it, focus, touch), not
+    // for every link that scrolls into view: on a slow link the profile would fetch four other pages' code.
+    defaults: { nuxtLink: { prefetchOn: { visibility: false, interaction: true } } },
+  },
   compatibilityDate: '2026-01-01',
   nitro: {
     hooks: {
@@ -74,12 +79,21 @@ export default defineNuxtConfig({
         })
       },
     },
+    // Built assets are written with .br and .gz copies beside them and served in the encoding the browser takes.
+    compressPublicAssets: { gzip: true, brotli: true },
     experimental: { tasks: true },
     // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
     scheduledTasks: { '0 * * * *': ['photos:purge'] },
   },
   typescript: { strict: true },
   telemetry: false,
+  hooks: {
+    // Lazy parts (the uploader, the charts, the entry forms) load when they are opened or scrolled to. Hinting
+    // every one of them for prefetch would send them all anyway, competing with the page on a slow link.
+    'build:manifest'(manifest) {
+      for (const chunk of Object.values(manifest)) chunk.prefetch = false
+    },
+  },
   eslint: { config: { stylistic: true } },
   // Security headers only (nuxt-security). Its request guards are off: the app has its own sign-in limiter,
   // same-origin check and text-input check, and a size limiter or XSS filter would refuse tus chunks,
