@@ -1,13 +1,13 @@
 #!/usr/bin/env bash
 # Benchmarks on loopback against the built server and a scratch database in the test cluster.
-# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | which-fish | hostile-uploads | all   (npm run bench = all)
+# Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | which-fish | hostile-uploads | faults | all   (npm run bench = all)
 # (FINTRAIL_TEST_PG_PORT moves the database cluster, as for the tests; BENCH_PORT the server.)
 set -euo pipefail
 source "$(dirname "${BASH_SOURCE[0]}")/../lib.sh"
 cd "$ROOT"
 
-NAME="${1:?name a benchmark: fish-list, timeline, photos, archive, which-fish, hostile-uploads or all}"
-BENCHMARKS=(fish-list timeline photos archive which-fish hostile-uploads)
+NAME="${1:?name a benchmark: fish-list, timeline, photos, archive, which-fish, hostile-uploads, faults or all}"
+BENCHMARKS=(fish-list timeline photos archive which-fish hostile-uploads faults)
 if [ "$NAME" != all ] && [ ! -f "scripts/bench/$NAME.ts" ]; then
   echo "No benchmark named $NAME (scripts/bench/$NAME.ts); choose one of: ${BENCHMARKS[*]} or all" >&2
   exit 2
@@ -18,6 +18,10 @@ DB="fintrail_bench"
 ensure_node_modules
 ensure_apt_packages postgresql
 pg_cluster_start test "$PG_PORT" fast
+# The fault benchmark stops and starts this cluster itself.
+BENCH_PG_START="$(pg_start_command_json "$PGDATA_DIR")"
+BENCH_PG_STOP="$(pg_stop_command_json "$PGDATA_DIR")"
+export BENCH_PG_START BENCH_PG_STOP
 export DATABASE_URL="postgres://fintrail@127.0.0.1:$PG_PORT/$DB"
 [ -f .output/server/index.mjs ] || npx nuxt build
 export NUXT_SESSION_PASSWORD="$(random_secret)"
