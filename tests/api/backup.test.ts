@@ -104,5 +104,5 @@ describe('backup and restore', () => {
 
     // A second restore into the now-filled targets is refused rather than mixed in.
     await expect(run(join(ROOT, 'node_modules/.bin/tsx'), ['scripts/restore.ts', backupFile], { cwd: ROOT, env: { ...env, NUXT_DATABASE_URL: restoredUrl(), NUXT_STORAGE_DIR: restoredStorage } })).rejects.toThrow(/not empty/)
-  }, 60_000)
+  }, 180_000) // two script runs and a server start; slow on a busy machine
 })

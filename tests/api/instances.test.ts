@@ -5,7 +5,7 @@ import { ApiClient } from '../support/client'
 import { closeTestDb } from '../support/db'
 import { MAIN_PORT, MAIN_URL } from '../support/env'
 import { TEST_PASSWORD, createFish, createPond, signedInUser } from '../support/factories'
-import { TUS, createUpload, fileSha256, makeJpeg, photoRows, sha256, storageDirs, tusRequest } from '../support/photos'
+import { ALL_DERIVED, TUS, createUpload, fileSha256, filesOf, makeJpeg, makeTwentyMegabyteJpeg, photoRows, sha256, storageDirs, tusRequest } from '../support/photos'
 import { startServer, type RunningServer } from '../support/server'
 
 // Two built servers on two ports against one database and one storage folder, as behind a load balancer:
@@ -13,7 +13,8 @@ import { startServer, type RunningServer } from '../support/server'
 let second: RunningServer
 
 beforeAll(async () => {
-  second = await startServer(MAIN_PORT + 10)
+  // Looks for photos left half-done every 2 s instead of every minute.
+  second = await startServer(MAIN_PORT + 10, { NUXT_PHOTO_RECOVERY_INTERVAL_SECONDS: '2' })
 })
 
 afterAll(async () => {
@@ -86,4 +87,34 @@ describe('two instances, one database and one storage folder', () => {
     const original = readdirSync(storageDirs().originals).find(name => name.startsWith(rows[0]!.id))!
     expect(fileSha256(join(storageDirs().originals, original))).toBe(sha256(photo))
   })
+
+  it('a photo whose instance is killed with SIGKILL while deriving it is finished by the other instance', async () => {
+    const { client } = await signedInUser()
+    const pond = await createPond(client)
+    const fish = await createFish(client, pond.id)
+    const photo = await makeTwentyMegabyteJpeg()
+    const doomed = await startServer(MAIN_PORT + 11)
+    try {
+      const { id, location } = await createUpload(doomed.url, client, photo.length, { fishId: fish.id, filename: 'killed-mid-way.jpg', view: 'top' })
+      const path = new URL(location, doomed.url).pathname
+      // The last PATCH derives the photo before it answers; the instance dies while the photo is pending.
+      const patch = tusRequest(doomed.url, client, 'PATCH', path, { 'Tus-Resumable': TUS, 'Content-Type': 'application/offset+octet-stream', 'Upload-Offset': '0' }, photo).catch(() => null)
+      for (let i = 0; i < 600 && (await photoRows('upload_id = $1', [id]))[0]?.state !== 'pending'; i++) await new Promise(r => setTimeout(r, 25))
+      expect((await photoRows('upload_id = $1', [id]))[0]?.state).toBe('pending')
+      await doomed.kill()
+      await patch
+
+      let rows = await photoRows('upload_id = $1', [id])
+      for (let i = 0; i < 150 && rows[0]?.state !== 'ready'; i++) {
+        await new Promise(r => setTimeout(r, 200))
+        rows = await photoRows('upload_id = $1', [id])
+      }
+      expect(rows).toHaveLength(1)
+      expect(rows[0]).toMatchObject({ state: 'ready', sha256: sha256(photo) })
+      expect(filesOf(id, rows[0]!.id).derived).toEqual(ALL_DERIVED)
+    }
+    finally {
+      await doomed.kill()
+    }
+  }, 180_000)
 })

@@ -58,7 +58,7 @@ describe('graceful restarts', () => {
     const finished = await answer
     expect(finished).toEqual({ status: 204, state: 'ready' })
     expect(await exited).toBe(0)
-  }, 60_000)
+  }, 120_000)
 
   it('a rolling restart of two instances under write load loses and doubles nothing', async () => {
     const first = await serverOn(MAIN_PORT + 14)
@@ -86,5 +86,5 @@ describe('graceful restarts', () => {
     expect(result.acknowledged.length).toBeGreaterThan(20)
     const check = await checkAcknowledged(testDb(), fish.id, result.acknowledged)
     expect(check).toEqual({ stored: result.acknowledged.length, lost: 0, doubled: 0, unacknowledged: 0 })
-  }, 120_000) // four server starts; slow on a busy machine
+  }, 240_000) // four server starts; slow on a busy machine
 })
