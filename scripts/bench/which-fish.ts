@@ -94,6 +94,8 @@ async function throughTheRoute(fish: BenchFish[], references: Reference[]) {
   const server = await startBenchServer(Number(process.env.FINTRAIL_TEST_PORT ?? 3500) + 17)
   try {
     const cookie = await signInCookie(server.url, 'bench@example.com')
+    // The server starts the worker and OpenCV a little after it starts; give it the time it takes.
+    await new Promise(resolve => setTimeout(resolve, 8000))
     const times: number[] = []
     let top1 = 0
     const sample = fish.slice(0, 20)
@@ -103,12 +105,11 @@ async function throughTheRoute(fish: BenchFish[], references: Reference[]) {
       const t0 = performance.now()
       const response = await fetch(`${server.url}/api/ponds/${pond.id}/identify`, { method: 'POST', body: form, headers: { cookie } })
       const body = await response.json() as { candidates: { fishId: string }[] }
-      // The first request also starts the worker thread and OpenCV: reported apart.
-      if (i > 0) times.push(performance.now() - t0)
-      else console.log(`route, first request (starts the worker and OpenCV): ${(performance.now() - t0).toFixed(0)} ms`)
+      times.push(performance.now() - t0)
+      if (i === 0) console.log(`route, first request (worker started by the server at start-up): ${(performance.now() - t0).toFixed(0)} ms`)
       if (body.candidates?.[0]?.fishId === fishIds.get(f.id)) top1++
     }
-    console.log(`route POST /api/ponds/:id/identify, ${fish.length} fish × ${REFERENCES} reference photos, ${times.length} rotated, cropped, darker photos: median ${median(times).toFixed(0)} ms, p95 ${percentile(times, 0.95).toFixed(0)} ms, max ${Math.max(...times).toFixed(0)} ms; top-1 ${pct(top1, sample.length)} (goal: under 2 s)`)
+    console.log(`route POST /api/ponds/:id/identify, ${fish.length} fish × ${REFERENCES} reference photos, ${times.length} rotated, cropped, darker photos (the first included): median ${median(times).toFixed(0)} ms, p95 ${percentile(times, 0.95).toFixed(0)} ms, max ${Math.max(...times).toFixed(0)} ms; top-1 ${pct(top1, sample.length)} (goal: under 2 s)`)
   }
   finally {
     server.stop()

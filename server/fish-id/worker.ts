@@ -6,7 +6,8 @@ import { rankFish, type RankedFish } from './match'
 import { loadOpenCv, openCv } from './opencv'
 
 export type WorkerRequest
-  = | { id: number, kind: 'extract', image: RgbImage }
+  = | { id: number, kind: 'warm' }
+    | { id: number, kind: 'extract', image: RgbImage }
     | { id: number, kind: 'rank', image: RgbImage, references: { photoId: string, fishId: string, features: Uint8Array }[], limit: number }
 
 export type WorkerResponse
@@ -16,6 +17,10 @@ export type WorkerResponse
 parentPort?.on('message', async (request: WorkerRequest) => {
   try {
     await loadOpenCv()
+    if (request.kind === 'warm') {
+      parentPort!.postMessage({ id: request.id, ok: true } satisfies WorkerResponse)
+      return
+    }
     const cv = openCv()
     if (request.kind === 'extract') {
       const features = packFeatures(extractFeatures(cv, request.image))

@@ -1,0 +1,41 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { BrowserContext } from 'playwright-core'
+import { openBrowser, screenshots, signIn } from '../support/browser'
+import { closeTestDb } from '../support/db'
+import { signedInUser } from '../support/factories'
+
+let browser: BrowserContext
+
+beforeAll(async () => {
+  browser = await openBrowser()
+})
+afterAll(async () => {
+  await browser?.close()
+  await closeTestDb()
+})
+
+describe('the account page in Chromium', () => {
+  it('shows which units and decimal mark are chosen, and keeps a change', async () => {
+    const person = await signedInUser({ name: 'Nell Ashby' })
+    const page = await browser.newPage()
+    await signIn(page, person.email, person.password)
+    await page.goto('/account', { waitUntil: 'networkidle' })
+    await expect.poll(() => page.getByTestId('units-metric').getAttribute('aria-pressed')).toBe('true')
+    expect(await page.getByTestId('units-us').getAttribute('aria-pressed')).toBe('false')
+    await page.getByTestId('units-us').click()
+    await expect.poll(() => page.getByTestId('units-us').getAttribute('aria-pressed')).toBe('true')
+    await page.getByTestId('decimal-comma').click()
+    await expect.poll(() => page.getByTestId('decimal-comma').getAttribute('aria-pressed')).toBe('true')
+    await page.reload({ waitUntil: 'networkidle' })
+    await expect.poll(() => page.getByTestId('units-us').getAttribute('aria-pressed')).toBe('true')
+    expect(await page.getByTestId('decimal-point').getAttribute('aria-pressed')).toBe('false')
+
+    // A wrong current password is refused under its own field and nothing changes.
+    await page.getByLabel('Current password').fill('not the password at all')
+    await page.getByLabel('New password').fill('a brand new pond password')
+    await page.getByRole('button', { name: 'Change password' }).click()
+    await expect.poll(() => page.getByTestId('error-currentPassword').textContent()).toContain('The current password is wrong')
+    await screenshots(page, 'account')
+    await page.close()
+  })
+})
