@@ -54,7 +54,8 @@ export async function axeAtBothWidths(page: Page, where: string, within?: string
 
 /**
  * Text cut off when the reader's font size is doubled (WCAG 1.4.4, resize text to 200 %): every element
- * that hides its vertical overflow and now has more content than room. Screen-reader-only text is left out.
+ * that hides its vertical overflow and now has more content than room. Screen-reader-only text and
+ * line-clamped text (which ends in an ellipsis, its whole text shown elsewhere) are left out.
  */
 export async function clippedTextAtDoubleSize(page: Page, where: string) {
   await page.evaluate(() => document.documentElement.style.setProperty('font-size', '200%'))
@@ -62,6 +63,8 @@ export async function clippedTextAtDoubleSize(page: Page, where: string) {
   const clipped = await page.evaluate(() => [...document.querySelectorAll<HTMLElement>('body *')].flatMap((el) => {
     const style = getComputedStyle(el)
     if (!['hidden', 'clip'].includes(style.overflowY) || el.clientWidth <= 2 || !el.textContent?.trim()) return []
+    // A deliberate two-line clamp (a caption shown whole in the photo viewer) ends in an ellipsis: not clipping.
+    if (style.getPropertyValue('-webkit-line-clamp') !== 'none' && style.getPropertyValue('-webkit-line-clamp') !== '') return []
     if (el.scrollHeight <= el.clientHeight + 2) return []
     return [`${el.tagName.toLowerCase()}.${[...el.classList].join('.')}: "${el.textContent.trim().replace(/\s+/g, ' ').slice(0, 80)}" (${el.scrollHeight} px of text in ${el.clientHeight} px)`]
   }))
