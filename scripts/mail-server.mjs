@@ -1,5 +1,9 @@
 // Local stand-in for a mail provider: accepts everything the app sends over SMTP, keeps each
 // message as a JSON file and shows them in a small web inbox. Tests read links from its API.
+// Why our own and not a mail catcher from npm: maildev 3.0.0 (tried 2026-12-02) declares Node >= 20 itself, but
+// installs 265 packages (112 MB: React, fastify, socket.io, jsdom, an MCP SDK, a second nodemailer and zod), and two
+// of them, content-disposition 3.1.0 and cookie 2.0.2, declare Node >= 22. This file needs only smtp-server and
+// mailparser, which the app already has.
 import { randomBytes } from 'node:crypto'
 import { mkdir, readdir, readFile, rename, rm, writeFile } from 'node:fs/promises'
 import { createServer } from 'node:http'

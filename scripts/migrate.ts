@@ -5,6 +5,7 @@ import { drizzle } from 'drizzle-orm/node-postgres'
 import { migrate } from 'drizzle-orm/node-postgres/migrator'
 import pg from 'pg'
 import { upgradeLegacyEntries } from '../server/db/upgrade-entries'
+import { writeWeightLossRule } from '../server/db/weight-loss-rule'
 
 const databaseUrl = process.env.DATABASE_URL
 if (!databaseUrl) {
@@ -31,6 +32,8 @@ try {
   const db = drizzle(pool)
   await migrate(db, { migrationsFolder })
   console.log('migrations applied')
+  // Before anything writes a weighing: the summary trigger reads this row.
+  if (await db.transaction(tx => writeWeightLossRule(tx))) console.log('weight-loss rule written, summaries recomputed')
   // Data written in an earlier form: once per entry, each as a new revision (see shared/utils/timeline-upgrade.ts).
   const upgraded = await db.transaction(tx => upgradeLegacyEntries(tx))
   if (upgraded) console.log(`${upgraded} timeline entries brought to the current form`)

@@ -2,7 +2,13 @@
 # npm start: a local Fintrail with its own PostgreSQL cluster, demo data and a fake mail inbox.
 # Ctrl-C stops all of it; the next start reuses the same database.
 set -euo pipefail
-source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
+LIB="$(dirname "${BASH_SOURCE[0]}")/lib"
+source "$LIB/common.sh"
+source "$LIB/packages.sh"
+source "$LIB/postgres.sh"
+source "$LIB/ports.sh"
+source "$LIB/mail.sh"
+source "$LIB/session-secret.sh"
 cd "$ROOT"
 
 PORT="${PORT:-3000}"

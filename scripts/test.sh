@@ -2,7 +2,13 @@
 # npm test: lint, typecheck, build, then every vitest project against a fresh PostgreSQL
 # database and a fake mail server. One run reports everything; it fails if anything failed.
 set -euo pipefail
-source "$(dirname "${BASH_SOURCE[0]}")/lib.sh"
+LIB="$(dirname "${BASH_SOURCE[0]}")/lib"
+source "$LIB/common.sh"
+source "$LIB/packages.sh"
+source "$LIB/postgres.sh"
+source "$LIB/ports.sh"
+source "$LIB/mail.sh"
+source "$LIB/session-secret.sh"
 cd "$ROOT"
 
 PG_PORT="${FINTRAIL_TEST_PG_PORT:-54339}"

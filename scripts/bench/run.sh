@@ -3,7 +3,11 @@
 # Usage: bash scripts/bench/run.sh fish-list | timeline | photos | archive | which-fish | hostile-uploads | all   (npm run bench = all)
 # (FINTRAIL_TEST_PG_PORT moves the database cluster, as for the tests; BENCH_PORT the server.)
 set -euo pipefail
-source "$(dirname "${BASH_SOURCE[0]}")/../lib.sh"
+LIB="$(dirname "${BASH_SOURCE[0]}")/../lib"
+source "$LIB/common.sh"
+source "$LIB/packages.sh"
+source "$LIB/postgres.sh"
+source "$LIB/ports.sh"
 cd "$ROOT"
 
 NAME="${1:?name a benchmark: fish-list, timeline, photos, archive, which-fish, hostile-uploads or all}"

@@ -1,8 +1,9 @@
 import type { H3Event } from 'h3'
 import { and, eq } from 'drizzle-orm'
 import type { PondRole, CurrentUser } from '#shared/types'
+import { POND_ROLES } from '#shared/utils/enums'
 
-export const ANY_ROLE: readonly PondRole[] = ['owner', 'keeper', 'vet']
+export const ANY_ROLE: readonly PondRole[] = POND_ROLES
 
 function notFound(what: string) {
   return createError({ statusCode: 404, statusMessage: `${what} not found` })
@@ -27,20 +28,38 @@ export function refuseReadOnlyWrite(event: H3Event, readOnly: boolean) {
   }
 }
 
+/** What a membership row carries for an access decision. */
+const membershipColumns = { role: schema.memberships.role, readOnly: schema.memberships.readOnly }
+
+/**
+ * The caller's membership of the pond a fish lives in: the one join through which a fish, its timeline
+ * entries and its photos are reached. Use it as `.innerJoin(schema.memberships, membershipOfFishPond(userId))`
+ * after joining `schema.fish`.
+ */
+function membershipOfFishPond(userId: string) {
+  return and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, userId))
+}
+
+/** The decision on what the query found: nothing is 404 (as if it did not exist), another role 403, read-only members only read. */
+function decide<T extends { role: PondRole, readOnly: boolean }>(event: H3Event, found: T | undefined, what: string, roles: readonly PondRole[]): T {
+  if (!found) throw notFound(what)
+  if (!roles.includes(found.role)) throw forbidden(roles)
+  refuseReadOnlyWrite(event, found.readOnly)
+  return found
+}
+
 /**
  * The one place pond access is decided. The role is read from the database on every call,
  * so a removed member is refused on their very next request. Non-members get 404, like a pond that does not exist.
  */
 export async function requirePondRole(event: H3Event, pondId: string, roles: readonly PondRole[] = ANY_ROLE) {
   const user = requireUser(event)
-  const [membership] = await useDb().select({ role: schema.memberships.role, readOnly: schema.memberships.readOnly })
+  const [membership] = await useDb().select(membershipColumns)
     .from(schema.memberships)
     .where(and(eq(schema.memberships.pondId, pondId), eq(schema.memberships.userId, user.id)))
     .limit(1)
-  if (!membership) throw notFound('Pond')
-  if (!roles.includes(membership.role)) throw forbidden(roles)
-  refuseReadOnlyWrite(event, membership.readOnly)
-  return { user, role: membership.role as PondRole, readOnly: membership.readOnly }
+  const { role, readOnly } = decide(event, membership, 'Pond', roles)
+  return { user, role, readOnly }
 }
 
 export interface FishAccess {
@@ -53,13 +72,45 @@ export interface FishAccess {
 /** Same rule for a fish: it is visible only through a membership of the pond it lives in. */
 export async function requireFishRole(event: H3Event, fishId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<FishAccess> {
   const user = requireUser(event)
-  const [row] = await useDb().select({ fish: schema.fish, role: schema.memberships.role, readOnly: schema.memberships.readOnly })
+  const [row] = await useDb().select({ fish: schema.fish, ...membershipColumns })
     .from(schema.fish)
-    .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
+    .innerJoin(schema.memberships, membershipOfFishPond(user.id))
     .where(eq(schema.fish.id, fishId))
     .limit(1)
-  if (!row) throw notFound('Fish')
-  if (!roles.includes(row.role)) throw forbidden(roles)
-  refuseReadOnlyWrite(event, row.readOnly)
-  return { user, role: row.role as PondRole, readOnly: row.readOnly, fish: row.fish }
+  const { fish, role, readOnly } = decide(event, row, 'Fish', roles)
+  return { user, role, readOnly, fish }
+}
+
+export interface EntryAccess extends FishAccess {
+  entry: typeof schema.timelineEntries.$inferSelect
+}
+
+/** An entry is reached through its fish: only members of the pond the fish lives in see it (404 otherwise). */
+export async function requireEntryAccess(event: H3Event, entryId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<EntryAccess> {
+  const user = requireUser(event)
+  const [row] = await useDb().select({ entry: schema.timelineEntries, fish: schema.fish, ...membershipColumns })
+    .from(schema.timelineEntries)
+    .innerJoin(schema.fish, eq(schema.fish.id, schema.timelineEntries.fishId))
+    .innerJoin(schema.memberships, membershipOfFishPond(user.id))
+    .where(eq(schema.timelineEntries.id, entryId))
+    .limit(1)
+  const { entry, fish, role, readOnly } = decide(event, row, 'Entry', roles)
+  return { user, role, readOnly, fish, entry }
+}
+
+export interface PhotoAccess extends FishAccess {
+  photo: typeof schema.photos.$inferSelect
+}
+
+/** A photo exists for the caller only through a membership of its fish's pond: anyone else gets 404. */
+export async function requirePhotoAccess(event: H3Event, photoId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<PhotoAccess> {
+  const user = requireUser(event)
+  const [row] = await useDb().select({ photo: schema.photos, fish: schema.fish, ...membershipColumns })
+    .from(schema.photos)
+    .innerJoin(schema.fish, eq(schema.fish.id, schema.photos.fishId))
+    .innerJoin(schema.memberships, membershipOfFishPond(user.id))
+    .where(eq(schema.photos.id, photoId))
+    .limit(1)
+  const { photo, fish, role, readOnly } = decide(event, row, 'Photo', roles)
+  return { user, role, readOnly, fish, photo }
 }

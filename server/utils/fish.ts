@@ -1,9 +1,8 @@
 import { fishListSql, type FishListQuery, type FishListRow } from '../db/queries/fish-list'
 import type { FishListItem, FishProfile, PondRole } from '#shared/types'
+import type { FishRow } from '#shared/types/rows'
 import { ageInYears } from '#shared/utils/fish-schemas'
 import { fultonK } from '#shared/utils/condition'
-
-type FishRow = typeof schema.fish.$inferSelect
 
 const focusOf = (x: number | null, y: number | null) => (x == null || y == null ? null : { x, y })
 

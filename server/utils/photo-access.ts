@@ -1,9 +1,8 @@
-import type { H3Event } from 'h3'
-import { and, eq } from 'drizzle-orm'
+import { eq } from 'drizzle-orm'
 import type { CurrentUser, PhotoItem, PondRole } from '#shared/types'
 import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
-
-export type PhotoRow = typeof schema.photos.$inferSelect
+import type { PhotoAccess } from './access'
+import type { PhotoRow } from '#shared/types/rows'
 
 // Owners photograph their fish, keepers record photos, vets photograph at exams.
 export const PHOTO_ADD_ROLES: readonly PondRole[] = ['owner', 'keeper', 'vet']
@@ -15,27 +14,6 @@ export function mayRemovePhoto(photo: Pick<PhotoRow, 'uploaderId'>, user: Curren
 /** View and caption: the uploader, and those who look after the fish's record (owner, keeper). */
 export function mayEditPhoto(photo: Pick<PhotoRow, 'uploaderId'>, user: CurrentUser, role: PondRole) {
   return role === 'owner' || role === 'keeper' || photo.uploaderId === user.id
-}
-
-export interface PhotoAccess {
-  user: CurrentUser
-  role: PondRole
-  photo: PhotoRow
-  fish: typeof schema.fish.$inferSelect
-}
-
-/** A photo exists for the caller only through a membership of its fish's pond: anyone else gets 404. */
-export async function requirePhotoAccess(event: H3Event, photoId: string): Promise<PhotoAccess> {
-  const user = requireUser(event)
-  const [row] = await useDb().select({ photo: schema.photos, fish: schema.fish, role: schema.memberships.role, readOnly: schema.memberships.readOnly })
-    .from(schema.photos)
-    .innerJoin(schema.fish, eq(schema.fish.id, schema.photos.fishId))
-    .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
-    .where(eq(schema.photos.id, photoId))
-    .limit(1)
-  if (!row) throw createError({ statusCode: 404, statusMessage: 'Photo not found' })
-  refuseReadOnlyWrite(event, row.readOnly)
-  return { user, role: row.role as PondRole, photo: row.photo, fish: row.fish }
 }
 
 export function purgeDate(removedAt: Date) {

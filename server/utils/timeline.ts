@@ -1,18 +1,18 @@
 import type { H3Event } from 'h3'
 import { and, eq, ne, sql } from 'drizzle-orm'
 import type { z } from 'zod'
-import type { CurrentUser, FieldErrors, PondRole } from '#shared/types'
+import type { FieldErrors, PondRole } from '#shared/types'
 import type { TimelineEntryView } from '#shared/types/timeline'
-import { ENTRY_DATA_SCHEMAS, ENTRY_KINDS, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
+import { ENTRY_DATA_SCHEMAS, type EntryKind, type TimelineKind } from '#shared/utils/timeline-schemas'
+import { ENTRY_KINDS } from '#shared/utils/enums'
 import { amendDecision, ENTRY_RULES, writeDecision } from '#shared/utils/timeline-rules'
 import { analyteFlag, enucleationConflict, eyeState, isEnucleation, isProlongedRecovery, measurementDerived, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
 import { treatmentSchedule, type GivenDose } from '#shared/utils/treatment-schedule'
 import { fieldErrorsFrom } from '#shared/utils/field-errors'
 import { dosesOf, type TimelineRow } from '../db/queries/timeline'
 import type { Tx } from './db'
-
-type EntryRow = typeof schema.timelineEntries.$inferSelect
-type FishRow = typeof schema.fish.$inferSelect
+import type { EntryAccess } from './access'
+import type { FishRow } from '#shared/types/rows'
 
 export function isEntryKind(kind: string): kind is EntryKind {
   return (ENTRY_KINDS as readonly string[]).includes(kind)
@@ -59,27 +59,6 @@ export function validateEntryData<K extends EntryKind>(kind: K, data: unknown): 
     throw badEntry(Object.fromEntries(Object.entries(errors).map(([key, list]) => [key === '_' ? 'data' : `data.${key}`, list])))
   }
   return result.data as z.output<typeof ENTRY_DATA_SCHEMAS[K]>
-}
-
-export interface EntryAccess {
-  user: CurrentUser
-  role: PondRole
-  fish: FishRow
-  entry: EntryRow
-}
-
-/** An entry is reached through its fish: only members of the pond the fish lives in see it (404 otherwise). */
-export async function requireEntryAccess(event: H3Event, entryId: string): Promise<EntryAccess> {
-  const user = requireUser(event)
-  const [row] = await useDb().select({ entry: schema.timelineEntries, fish: schema.fish, role: schema.memberships.role, readOnly: schema.memberships.readOnly })
-    .from(schema.timelineEntries)
-    .innerJoin(schema.fish, eq(schema.fish.id, schema.timelineEntries.fishId))
-    .innerJoin(schema.memberships, and(eq(schema.memberships.pondId, schema.fish.pondId), eq(schema.memberships.userId, user.id)))
-    .where(eq(schema.timelineEntries.id, entryId))
-    .limit(1)
-  if (!row) throw createError({ statusCode: 404, statusMessage: 'Entry not found' })
-  refuseReadOnlyWrite(event, row.readOnly)
-  return { user, role: row.role as PondRole, fish: row.fish, entry: row.entry }
 }
 
 export function refuseAmend(access: EntryAccess) {

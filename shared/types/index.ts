@@ -1,67 +1,39 @@
-import type { DecimalMark } from '../utils/decimal'
-import type { PondVolumeMeasurement } from '../utils/pond-volume-schemas'
+import type { FISH_SPECIES, FISH_STATUSES, OUTGOING_MAIL_STATUSES, PHOTO_STATES, PHOTO_VIEWS, POND_ROLES, UNIT_SYSTEMS, FISH_SEXES } from '../utils/enums'
+import type { AsJson, FishRow, PhotoRow, PondRow, UserRow } from './rows'
 
-export const POND_ROLES = ['owner', 'keeper', 'vet'] as const
 export type PondRole = typeof POND_ROLES[number]
 
-export const FISH_SPECIES = ['koi', 'goldfish', 'other'] as const
 export type FishSpecies = typeof FISH_SPECIES[number]
-export const FISH_SEXES = ['unknown', 'male', 'female'] as const
-export const FISH_STATUSES = ['alive', 'deceased', 'rehomed'] as const
+export type FishSex = typeof FISH_SEXES[number]
 export type FishStatus = typeof FISH_STATUSES[number]
 
-export type UnitSystem = 'metric' | 'us'
+export type UnitSystem = typeof UNIT_SYSTEMS[number]
 
 export type FieldErrors = Record<string, string[]>
 
-export interface CurrentUser {
-  id: string
-  name: string
-  email: string
-  units: UnitSystem
-  /** How this person writes decimals; every number they type is read with it. */
-  decimalMark: DecimalMark
-}
+/** The signed-in person; `decimalMark` is how they write decimals, and every number they type is read with it. */
+export type CurrentUser = Pick<UserRow, 'id' | 'name' | 'email' | 'units' | 'decimalMark'>
 
-export interface PondSummary {
-  id: string
-  name: string
+export interface PondSummary extends Pick<PondRow, 'id' | 'name' | 'volumeLitres'> {
   role: PondRole
-  volumeLitres: number | null
   fishCount: number
 }
 
-export interface PondDetail {
-  id: string
-  name: string
-  volumeLitres: number | null
-  /** How the volume was measured (shape, unit, readings); null when it was typed as a number. */
-  volumeMeasurement: PondVolumeMeasurement | null
-  notes: string
-  /** The yearly health check's month and day (MM-DD). */
-  healthCheckDay: string
-  waterTestIntervalDays: number
+/**
+ * A pond as its page reads it. From the row: `volumeMeasurement` (shape, unit, readings; null when the volume
+ * was typed as a number), `healthCheckDay` (the yearly check's MM-DD), `waterTestIntervalDays`.
+ */
+export interface PondDetail extends AsJson<Pick<PondRow, 'id' | 'name' | 'volumeLitres' | 'volumeMeasurement' | 'notes'
+  | 'healthCheckDay' | 'waterTestIntervalDays' | 'createdAt' | 'updatedAt'>> {
   role: PondRole
   /** Kept on after a handover to look, not to change: the client hides what the server would refuse. */
   readOnly: boolean
   fishCount: number
-  createdAt: string
-  updatedAt: string
 }
 
-export interface FishListItem {
-  id: string
-  name: string
-  species: FishSpecies
-  scientificName: string
-  variety: string
-  sex: string
-  hatchYear: number | null
-  hatchYearEstimated: boolean
+export interface FishListItem extends Pick<FishRow, 'id' | 'name' | 'species' | 'scientificName' | 'variety' | 'sex' | 'hatchYear'
+  | 'hatchYearEstimated' | 'microchip' | 'status' | 'profilePhotoId'> {
   ageYears: number | null
-  microchip: string | null
-  status: FishStatus
-  profilePhotoId: string | null
   /** Where the fish's head is on its profile photo, in percent across and down; null keeps the centre. */
   profileFocus: PhotoFocus | null
   latestWeightG: number | null
@@ -70,30 +42,14 @@ export interface FishListItem {
   weightAlert: boolean
 }
 
-export interface FishProfile {
-  id: string
-  pondId: string
+export interface FishProfile extends AsJson<Pick<FishRow, 'id' | 'pondId' | 'name' | 'species' | 'scientificName' | 'variety' | 'sex'
+  | 'hatchYear' | 'hatchYearEstimated' | 'acquiredOn' | 'acquiredFrom' | 'microchip' | 'features' | 'status' | 'profilePhotoId'
+  | 'version' | 'createdAt' | 'updatedAt'>> {
   pondName: string
   role: PondRole
   readOnly: boolean
-  name: string
-  species: FishSpecies
-  scientificName: string
-  variety: string
-  sex: 'unknown' | 'male' | 'female'
-  hatchYear: number | null
-  hatchYearEstimated: boolean
   ageYears: number | null
-  acquiredOn: string | null
-  acquiredFrom: string
-  microchip: string | null
-  features: string
-  status: FishStatus
-  profilePhotoId: string | null
   profileFocus: PhotoFocus | null
-  version: number
-  createdAt: string
-  updatedAt: string
 }
 
 export interface FishEditRecord {
@@ -103,28 +59,17 @@ export interface FishEditRecord {
   changes: { field: string, from: unknown, to: unknown }[]
 }
 
-export const PHOTO_VIEWS = ['top', 'left', 'right', 'closeup', 'other'] as const
 export type PhotoView = typeof PHOTO_VIEWS[number]
-export type PhotoState = 'pending' | 'ready' | 'failed'
+export type PhotoState = typeof PHOTO_STATES[number]
 
-export interface PhotoItem {
-  id: string
-  fishId: string
+/** A photo as the gallery reads it. From the row: `takenAt` is the photo's own EXIF date (the camera's clock), null when it had none. */
+export interface PhotoItem extends AsJson<Pick<PhotoRow, 'id' | 'fishId' | 'view' | 'caption' | 'originalName' | 'takenAt' | 'state'
+  | 'failureReason' | 'width' | 'height' | 'removedAt'>> {
   uploaderName: string
-  view: PhotoView
-  caption: string
-  originalName: string
-  /** From the photo's own EXIF date (the camera's clock), null when it had none. */
-  takenAt: string | null
   uploadedAt: string
-  state: PhotoState
-  failureReason: string | null
-  width: number | null
-  height: number | null
   isProfile: boolean
   canEdit: boolean
   canRemove: boolean
-  removedAt: string | null
   /** When a removed photo is deleted for good. */
   purgeAt: string | null
 }
@@ -141,7 +86,7 @@ export interface PhotoFocus { x: number, y: number }
 
 /** Where the e-mail announcing an offer stands, shown to its sender with a resend button. */
 export interface OfferMailState {
-  status: 'queued' | 'sent' | 'failed'
+  status: typeof OUTGOING_MAIL_STATUSES[number]
   attempts: number
   /** A plain reason when the last attempt failed; the raw SMTP error stays in the server log. */
   lastError: string | null

@@ -3,9 +3,9 @@
 // spreadsheets, and every photo original under photos/. Ids inside an archive are references between its
 // records; an import gives every record a new id.
 import { z } from 'zod'
-import { POND_ROLES } from '../types'
+import { FISH_SEXES, FISH_SPECIES, FISH_STATUSES, PHOTO_VIEWS, POND_ROLES, STORED_TIMELINE_KINDS } from './enums'
 import { fishCreateSchema } from './fish-schemas'
-import { ENTRY_DATA_SCHEMAS, STORED_TIMELINE_KINDS, type EntryKind } from './timeline-schemas'
+import { ENTRY_DATA_SCHEMAS, type EntryKind } from './timeline-schemas'
 import { writeDecision } from './timeline-rules'
 
 export const ARCHIVE_FORMAT = 'fintrail-pond-archive'
@@ -58,10 +58,10 @@ export const personRecord = z.strictObject({
 })
 
 export const fishRecord = z.strictObject({
-  id, name: text(80).min(1), species: z.enum(['koi', 'goldfish', 'other']), scientificName: text(120), variety: text(80),
-  sex: z.enum(['unknown', 'male', 'female']), hatchYear: z.number().int().min(1800).max(3000).nullable(), hatchYearEstimated: z.boolean(),
+  id, name: text(80).min(1), species: z.enum(FISH_SPECIES), scientificName: text(120), variety: text(80),
+  sex: z.enum(FISH_SEXES), hatchYear: z.number().int().min(1800).max(3000).nullable(), hatchYearEstimated: z.boolean(),
   acquiredOn: z.iso.date().nullable(), acquiredFrom: text(160), microchip: z.string().regex(/^\d{15}$/).nullable(), features: text(2000),
-  status: z.enum(['alive', 'deceased', 'rehomed']), profilePhotoId: id.nullable(), createdAt: isoTime, updatedAt: isoTime,
+  status: z.enum(FISH_STATUSES), profilePhotoId: id.nullable(), createdAt: isoTime, updatedAt: isoTime,
 }).superRefine((f, ctx) => {
   // The same rules as a fish created here (name, microchip check digits, years, dates).
   const live = fishCreateSchema.safeParse({
@@ -94,7 +94,7 @@ export const timelineRecord = z.strictObject({
   .refine(r => !r.doses?.length || (r.kind === 'treatment' && new Set(r.doses.map(d => d.doseNumber)).size === r.doses.length), 'Doses belong to a treatment, each dose once')
 
 export const photoRecord = z.strictObject({
-  id, fishId: id, uploader: id, originalName: text(255), view: z.enum(['top', 'left', 'right', 'closeup', 'other']), caption: text(300),
+  id, fishId: id, uploader: id, originalName: text(255), view: z.enum(PHOTO_VIEWS), caption: text(300),
   takenAt: isoTime.nullable(), createdAt: isoTime, removedAt: isoTime.nullable(), mime: z.enum(['image/jpeg', 'image/png', 'image/webp']),
   bytes: z.number().int().min(1).max(ARCHIVE_LIMITS.photoBytes), sha256: z.string().regex(/^[0-9a-f]{64}$/), file: z.string().regex(/^photos\/[0-9a-f-]{36}\.(jpg|png|webp)$/),
 })

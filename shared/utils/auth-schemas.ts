@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { isCommonPassword } from './common-passwords'
-import { DECIMAL_MARKS } from './decimal'
+import { DECIMAL_MARKS, UNIT_SYSTEMS } from './enums'
 
 export const PASSWORD_MIN_LENGTH = 10
 
@@ -38,6 +38,6 @@ export const resetPasswordSchema = z.strictObject({
 
 export const accountUpdateSchema = z.strictObject({
   name: z.string().trim().min(1, 'Enter your name').max(120, 'At most 120 characters').optional(),
-  units: z.enum(['metric', 'us']).optional(),
+  units: z.enum(UNIT_SYSTEMS).optional(),
   decimalMark: z.enum(DECIMAL_MARKS, 'Choose point or comma').optional(),
 })

@@ -168,9 +168,9 @@ export interface WeightChangeAlertOptions {
   hatchYear?: number
   /** Common practice: fish under 5 years old are treated as still growing. */
   growingUntilAgeYears?: number
-  /** Common practice: a loss of 10 % or more is worth a look. */
+  /** Default WEIGHT_LOSS_RULE.lossPercent (10 %, common practice). */
   lossPercent?: number
-  /** Common practice: the loss counts when it happens within 90 days. */
+  /** Default WEIGHT_LOSS_RULE.lossWindowDays (90 days, common practice). */
   lossWindowDays?: number
   /** Common practice: a growing fish that has not gained in a year is worth a look. */
   noGainDays?: number
@@ -189,8 +189,14 @@ export interface WeightChangeAlert {
   message: string
 }
 
+/**
+ * Common practice: a loss of 10 % or more within 90 days is worth a look. The one source of these numbers:
+ * scripts/migrate.ts writes them into the weight_loss_rule row that the fish list's flag is computed from in SQL.
+ */
+export const WEIGHT_LOSS_RULE = { lossPercent: 10, lossWindowDays: 90 } as const
+
 const DAY_MS = 86_400_000
-// Guards the ≥ comparisons against binary rounding (a 10 % loss must count as 10 %).
+// Guards the ≥ comparisons against binary rounding (a 10 % loss must count as 10 %). The SQL uses the same 1e-9.
 const PERCENT_TOLERANCE = 1e-9
 
 interface DatedWeight {
@@ -248,8 +254,8 @@ export function weightChangeAlert(
   measurements: readonly WeightMeasurement[],
   options: WeightChangeAlertOptions = {},
 ): WeightChangeAlert[] {
-  const lossPercent = options.lossPercent ?? 10
-  const lossWindowMs = (options.lossWindowDays ?? 90) * DAY_MS
+  const lossPercent = options.lossPercent ?? WEIGHT_LOSS_RULE.lossPercent
+  const lossWindowMs = (options.lossWindowDays ?? WEIGHT_LOSS_RULE.lossWindowDays) * DAY_MS
   const noGainMs = (options.noGainDays ?? 365) * DAY_MS
   const growingUntilAge = options.growingUntilAgeYears ?? 5
 

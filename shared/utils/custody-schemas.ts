@@ -3,7 +3,8 @@ import { z } from 'zod'
 import { emailSchema } from './auth-schemas'
 import type { OfferMailState } from '../types'
 
-export const HANDOVER_MEMBERS_OPTIONS = ['stay', 'read_only', 'leave'] as const
+import { HANDOVER_MEMBERS_OPTIONS } from './enums'
+
 export type HandoverMembersOption = typeof HANDOVER_MEMBERS_OPTIONS[number]
 
 /** What each option does, in the words the offer form and the acceptance page show. */

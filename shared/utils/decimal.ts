@@ -2,7 +2,8 @@
 // person's setting, never guessed: "1,250" is 1250 for a point-decimal reader and refused as
 // ambiguous for nobody, while "1,25" is refused for them because it cannot be a thousands group.
 
-export const DECIMAL_MARKS = ['point', 'comma'] as const
+import type { DECIMAL_MARKS } from './enums'
+
 export type DecimalMark = typeof DECIMAL_MARKS[number]
 
 export type DecimalReading = { ok: true, value: number } | { ok: false, message: string }

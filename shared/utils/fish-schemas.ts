@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { FISH_SEXES, FISH_SPECIES, FISH_STATUSES } from '../types'
+import { FISH_SEXES, FISH_SPECIES, FISH_STATUSES } from './enums'
 import { parseMicrochip } from './microchip'
 
 export const SCIENTIFIC_NAMES = { koi: 'Cyprinus carpio', goldfish: 'Carassius auratus' } as const

@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { PHOTO_VIEWS, type PondRole } from '../types'
+import type { PondRole } from '../types'
+import { PHOTO_VIEWS } from './enums'
 
 export const PHOTO_VIEW_LABELS: Record<typeof PHOTO_VIEWS[number], string> = {
   top: 'From above',

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { POND_ROLES } from '../types'
+import { POND_ROLES } from './enums'
 import { emailSchema } from './auth-schemas'
 import { checkDaySchema, waterTestIntervalSchema } from './due'
 

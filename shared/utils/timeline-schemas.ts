@@ -4,11 +4,9 @@
 import { z } from 'zod'
 import { PLAUSIBILITY_CODES, plausibilityWarningSchema } from './plausibility'
 
-/** Kinds a person writes through the timeline. 'photo' comes from the photos table, 'pond_event' from the pond's own events; moves and owner changes come later. */
-export const ENTRY_KINDS = ['measurement', 'observation', 'exam', 'problem', 'procedure', 'anaesthesia', 'treatment', 'lab_result', 'companion', 'death'] as const
+import { STORED_TIMELINE_KINDS, type ENTRY_KINDS } from './enums'
+
 export type EntryKind = typeof ENTRY_KINDS[number]
-/** The kinds a timeline_entries row can have (the database enum). */
-export const STORED_TIMELINE_KINDS = [...ENTRY_KINDS, 'photo', 'move', 'owner_change'] as const
 /** What a fish's timeline shows: its stored entries and the whole-pond events of the ponds it lived in. */
 export const TIMELINE_KINDS = [...STORED_TIMELINE_KINDS, 'pond_event'] as const
 export type TimelineKind = typeof TIMELINE_KINDS[number]

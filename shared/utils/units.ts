@@ -2,7 +2,8 @@
 // NIST SP 811 and Handbook 44 (all of them exact by definition, so round trips are clean).
 import type { DecimalMark } from './decimal'
 
-export const UNIT_SYSTEMS = ['metric', 'us'] as const
+import type { UNIT_SYSTEMS } from './enums'
+
 type UnitSystem = typeof UNIT_SYSTEMS[number]
 
 export type UnitQuantity = 'mass' | 'length' | 'volume' | 'temperature'
@@ -120,14 +121,15 @@ export function formatMass(grams: number, system: UnitSystem, mark: DecimalMark 
     if (pounds === 0) return `${formatNumber(ounces, 1, mark)} oz`
     return `${formatNumber(pounds, 0, mark)} lb ${formatNumber(ounces, 1, mark)} oz`
   }
-  if (grams >= 1000) return `${formatNumber(grams / 1000, 2, mark)} kg`
-  // Small goldfish weigh a few grams: a decimal matters there, not on a koi.
-  return grams < 10 ? `${formatNumber(grams, 1, mark)} g` : `${formatNumber(grams, 0, mark)} g`
+  // The unit follows the figure shown: 999.6 g would print as "1,000 g", so it reads as kilograms like 1000 g.
+  if (Math.round(grams) >= 1000) return `${formatNumber(grams / 1000, 2, mark)} kg`
+  // Small goldfish weigh a few grams: a decimal matters there, not on a koi (9.96 g prints as 10 g, not 10.0 g).
+  return Math.round(grams * 10) < 100 ? `${formatNumber(grams, 1, mark)} g` : `${formatNumber(grams, 0, mark)} g`
 }
 
 /** A recorded weight with its grams spelled out: "1,250 g (1.25 kg)", so a weight typed in grams reads back as typed. */
 export function formatMassWithGrams(grams: number, system: UnitSystem, mark: DecimalMark = 'point'): string {
-  if (system === 'us' || !isMeasurable(grams) || grams < 1000) return formatMass(grams, system, mark)
+  if (system === 'us' || !isMeasurable(grams) || Math.round(grams) < 1000) return formatMass(grams, system, mark)
   return `${formatNumber(grams, Number.isInteger(Number(grams.toFixed(1))) ? 0 : 1, mark)} g (${formatMass(grams, system, mark)})`
 }
 

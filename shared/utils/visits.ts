@@ -1,8 +1,8 @@
 // Vet visits: a vet opens a visit at a pond, ticks the fish seen, works (every entry, pond event and
 // water test they record there meanwhile is linked to it), and closes it with findings.
 import { z } from 'zod'
+import { VISIT_PURPOSES } from './enums'
 
-export const VISIT_PURPOSES = ['health_check', 'sick_call', 'surgery', 'follow_up'] as const
 export type VisitPurpose = typeof VISIT_PURPOSES[number]
 
 export const VISIT_PURPOSE_LABELS: Record<VisitPurpose, string> = {

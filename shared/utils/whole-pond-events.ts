@@ -6,8 +6,8 @@ import type { PondRole } from '../types'
 import { bathAmountMg, saltForPondKg } from './doses'
 import { occurredAtSchema } from './timeline-schemas'
 import { writeDecision, type WriteDecision } from './timeline-rules'
+import type { WHOLE_POND_EVENT_KINDS } from './enums'
 
-export const WHOLE_POND_EVENT_KINDS = ['salt', 'bath', 'water_change', 'mortality'] as const
 export type WholePondEventKind = typeof WHOLE_POND_EVENT_KINDS[number]
 
 export const WHOLE_POND_EVENT_LABELS: Record<WholePondEventKind, string> = {

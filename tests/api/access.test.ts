@@ -1,7 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { randomUUID } from 'node:crypto'
 import { closeTestDb, testDb } from '../support/db'
-import { pondWithRoles, testMicrochip } from '../support/factories'
+import { addMember, pondWithRoles, signedInUser, testMicrochip } from '../support/factories'
+import { insertReadyPhoto } from '../support/custody'
+import { addEntry } from '../support/timeline'
 import type { ApiClient } from '../support/client'
 
 afterAll(closeTestDb)
@@ -158,5 +160,36 @@ describe('fish edits', () => {
   it('turns an estimated age into an estimated hatch year', async () => {
     const response = await client('owner').post(`/api/ponds/${world.pond.id}/fish`, { name: 'Old one', species: 'goldfish', estimatedAgeYears: 12 })
     expect(response.body).toMatchObject({ hatchYear: new Date().getFullYear() - 12, hatchYearEstimated: true, ageYears: 12, scientificName: 'Carassius auratus' })
+  })
+})
+
+// Entries and photos are reached through their fish's pond, by the same membership check as the fish itself:
+// each kind of caller gets the same status as for the fish, and a read-only member reads but never writes.
+describe('role matrix through a fish: timeline entries and photos', () => {
+  type Through = Who | 'readOnly'
+  let w: Roles & { readOnly: Awaited<ReturnType<typeof signedInUser>> }
+  let entryId: string
+  let photoId: string
+  beforeAll(async () => {
+    const roles = await pondWithRoles()
+    const readOnly = await signedInUser({ name: 'Former keeper' })
+    await addMember(roles.pond.id, readOnly.user.id, 'keeper')
+    await testDb().query('update memberships set read_only = true where pond_id = $1 and user_id = $2', [roles.pond.id, readOnly.user.id])
+    w = { ...roles, readOnly }
+    entryId = (await addEntry(roles.keeper.client, roles.fish.id, { kind: 'observation', occurredAt: new Date().toISOString(), data: { text: 'Matrix entry' } })).entry.id
+    photoId = await insertReadyPhoto(roles.fish.id, roles.keeper.user.id, new Date().toISOString())
+  })
+  const rows: { route: string, call: (c: ApiClient) => Promise<{ status: number }>, expected: Record<Through, number> }[] = [
+    { route: 'GET /api/timeline/:entryId/revisions', call: c => c.get(`/api/timeline/${entryId}/revisions`), expected: { owner: 200, keeper: 200, vet: 200, readOnly: 200, outsider: 404, anonymous: 401 } },
+    { route: 'GET /api/timeline/:unknown/revisions', call: c => c.get(`/api/timeline/${randomUUID()}/revisions`), expected: { owner: 404, keeper: 404, vet: 404, readOnly: 404, outsider: 404, anonymous: 401 } },
+    // The uploader (the keeper) and an owner may caption a photo; a vet who did not take it may not.
+    { route: 'PATCH /api/photos/:photoId', call: c => c.patch(`/api/photos/${photoId}`, { caption: 'Matrix' }), expected: { owner: 200, keeper: 200, vet: 403, readOnly: 403, outsider: 404, anonymous: 401 } },
+    { route: 'PATCH /api/photos/:unknown', call: c => c.patch(`/api/photos/${randomUUID()}`, { caption: 'Matrix' }), expected: { owner: 404, keeper: 404, vet: 404, readOnly: 404, outsider: 404, anonymous: 401 } },
+    // Sent without a reason, so the entry stays as it is: who passes the access and amend checks gets the 400 of the body.
+    { route: 'POST /api/timeline/:entryId/entered-in-error', call: c => c.post(`/api/timeline/${entryId}/entered-in-error`, {}), expected: { owner: 400, keeper: 400, vet: 403, readOnly: 403, outsider: 404, anonymous: 401 } },
+  ]
+  const cases = rows.flatMap(row => (Object.keys(row.expected) as Through[]).map(who => ({ ...row, who, status: row.expected[who] })))
+  it.each(cases)('$route as $who answers $status', async ({ call, who, status }) => {
+    expect((await call(w[who].client)).status).toBe(status)
   })
 })

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { weightChangeAlert } from '../../shared/utils/condition'
-import { closeTestDb } from '../support/db'
+import { WEIGHT_LOSS_RULE, weightChangeAlert } from '../../shared/utils/condition'
+import { closeTestDb, testDb } from '../support/db'
 import { createFish, pondWithRoles } from '../support/factories'
 import { addEntry, DAY_MS } from '../support/timeline'
 
@@ -39,5 +39,36 @@ describe('the fish table’s weight-loss flag agrees with weightChangeAlert', ()
   it('has both answers for the boundary cases, so the check above can fail', () => {
     const answers = cases.map(c => weightChangeAlert([{ date: new Date(start), weightG: c.from }, { date: new Date(start + c.later), weightG: c.to }]).some(a => a.kind === 'loss'))
     expect(answers).toEqual([true, false, false, true, false])
+  })
+})
+
+describe('the SQL rule reads its thresholds from the one row written from WEIGHT_LOSS_RULE', () => {
+  it('holds exactly the shared numbers', async () => {
+    const { rows } = await testDb().query('select loss_percent, loss_window_days from weight_loss_rule')
+    expect(rows).toEqual([{ loss_percent: WEIGHT_LOSS_RULE.lossPercent, loss_window_days: WEIGHT_LOSS_RULE.lossWindowDays }])
+  })
+
+  it('follows the row: a 6 % loss is flagged only while the row says 5 %', async () => {
+    const fish = await createFish(world.owner.client, world.pond.id, { name: 'Rule reader' })
+    const first = new Date(start).toISOString()
+    const second = new Date(start + 30 * DAY_MS).toISOString()
+    await addEntry(world.keeper.client, fish.id, { kind: 'measurement', occurredAt: first, data: { weightG: 1000 } })
+    await addEntry(world.keeper.client, fish.id, { kind: 'measurement', occurredAt: second, data: { weightG: 940 } })
+    const flag = async (q: { query: (text: string, values: unknown[]) => Promise<{ rows: { weight_alert: boolean }[] }> }) =>
+      (await q.query('select weight_alert from fish_measurement_summary where fish_id = $1', [fish.id])).rows[0]!.weight_alert
+    expect(await flag(testDb())).toBe(false)
+    // Changed inside a transaction that is rolled back, so no other test sees the 5 %.
+    const client = await testDb().connect()
+    try {
+      await client.query('begin')
+      await client.query('update weight_loss_rule set loss_percent = 5')
+      await client.query('select fintrail_refresh_measurement_summary($1)', [fish.id])
+      expect(await flag(client)).toBe(true)
+    }
+    finally {
+      await client.query('rollback')
+      client.release()
+    }
+    expect(await flag(testDb())).toBe(false)
   })
 })

@@ -99,6 +99,18 @@ describe('length–weight relationship and relative condition', () => {
     expect(fit.r2).toBeLessThan(1)
   })
 
+  it('reports r² (the coefficient of determination), not Pearson r', () => {
+    // Derived by hand in log10 space: x = 1, 2, 3 and y = 1, 3, 2 give Sxx = 2, Syy = 2, Sxy = 1, so
+    // b = Sxy / Sxx = 0.5, Pearson r = Sxy / √(Sxx · Syy) = 0.5 and r² = 0.25. A fit reporting r would read 0.5.
+    const fit = fitLengthWeight([
+      { lengthCm: 10, weightG: 10 },
+      { lengthCm: 100, weightG: 1000 },
+      { lengthCm: 1000, weightG: 100 },
+    ])!
+    expect(fit.b).toBeCloseTo(0.5, 12)
+    expect(fit.r2).toBeCloseTo(0.25, 12)
+  })
+
   it('ignores points that are not finite and positive', () => {
     const good = [10, 20, 30, 40].map(lengthCm => ({ lengthCm, weightG: carp.a * lengthCm ** carp.b }))
     const fit = fitLengthWeight([
@@ -253,6 +265,42 @@ describe('weightChangeAlert (common practice thresholds)', () => {
     else {
       expect(alerts).toEqual([])
     }
+  })
+
+  // Boundaries of the rule (thresholds are common practice, see weightChangeAlert): each pair differs by the
+  // smallest step that crosses the threshold, so a changed comparison (< for <=) or constant fails one row.
+  it.each([
+    { label: 'exactly 365 days flat is a year without gain', days: 365, flagged: true },
+    { label: '364 days flat is not yet a year', days: 364, flagged: false },
+  ])('common practice, boundary: $label', ({ days, flagged }) => {
+    const start = Date.UTC(2023, 4, 1)
+    const alerts = weightChangeAlert([
+      { date: new Date(start), weightG: 500 },
+      { date: new Date(start + days * 86_400_000), weightG: 500 },
+    ], { growing: true })
+    expect(alerts.map(a => a.kind)).toEqual(flagged ? ['no_gain'] : [])
+  })
+
+  it.each([
+    { label: 'exactly 10 % in exactly 90 days is flagged', ms: 90 * 86_400_000, to: 900, flagged: true },
+    { label: '10 % in 90 days and one minute is outside the window', ms: 90 * 86_400_000 + 60_000, to: 900, flagged: false },
+    { label: '9.99 % in exactly 90 days is under the threshold', ms: 90 * 86_400_000, to: 900.1, flagged: false },
+  ])('common practice, boundary: $label', ({ ms, to, flagged }) => {
+    const start = Date.UTC(2024, 0, 1)
+    const alerts = weightChangeAlert([
+      { date: new Date(start), weightG: 1000 },
+      { date: new Date(start + ms), weightG: to },
+    ])
+    expect(alerts.map(a => a.kind)).toEqual(flagged ? ['loss'] : [])
+  })
+
+  it.each([
+    // Common practice: a fish under 5 years old is still growing; its age is counted in the year of the later weighing.
+    { label: 'hatched 2020: 4 years old in 2024, still growing', hatchYear: 2020, flagged: true },
+    { label: 'hatched 2019: 5 years old in 2024, no longer counted as growing', hatchYear: 2019, flagged: false },
+  ])('common practice, boundary of the under-5-years rule: $label', ({ hatchYear, flagged }) => {
+    const alerts = weightChangeAlert(flatYear, { hatchYear })
+    expect(alerts.map(a => a.kind)).toEqual(flagged ? ['no_gain'] : [])
   })
 
   it('a growing fish that gained is not flagged', () => {

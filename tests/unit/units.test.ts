@@ -6,7 +6,6 @@ import {
   formatTemperature,
   formatVolume,
   unitQuantity,
-  UNIT_SYSTEMS,
 } from '../../shared/utils/units'
 
 describe('convert: exact NIST factors', () => {
@@ -69,16 +68,18 @@ describe('convert: exact NIST factors', () => {
 })
 
 describe('formatting for the two unit systems', () => {
-  it('offers metric and US customary', () => {
-    expect(UNIT_SYSTEMS).toEqual(['metric', 'us'])
-  })
-
   it.each([
     { label: 'derived: 1250 g = 1.25 kg', grams: 1250, system: 'metric', expected: '1.25 kg' },
     // Derived: 1250 / 28.349523125 = 44.0925 oz = 2 lb 12.09 oz.
     { label: 'derived: 1250 g = 2 lb 12.1 oz', grams: 1250, system: 'us', expected: '2 lb 12.1 oz' },
     { label: 'derived: 850 g', grams: 850, system: 'metric', expected: '850 g' },
     { label: 'derived: 4.5 g keeps a decimal', grams: 4.5, system: 'metric', expected: '4.5 g' },
+    // Common practice: a weight is shown in the unit its rounded figure belongs to. 999.6 g rounds to 1000 g,
+    // so it reads as kilograms like 1000 g does, not as "1,000 g".
+    { label: 'common practice: 999.6 g reads 1.00 kg', grams: 999.6, system: 'metric', expected: '1.00 kg' },
+    { label: 'common practice: 999.4 g stays in grams', grams: 999.4, system: 'metric', expected: '999 g' },
+    // Likewise 9.96 g rounds to 10.0 g and is shown without the decimal, like 10 g.
+    { label: 'common practice: 9.96 g reads 10 g', grams: 9.96, system: 'metric', expected: '10 g' },
     // Derived: 340 / 28.349523125 = 11.993 oz, under a pound.
     { label: 'derived: 340 g = 12.0 oz', grams: 340, system: 'us', expected: '12.0 oz' },
     // Derived: 453.5 g = 15.997 oz, which rounds to 16.0 oz and carries to 1 lb.

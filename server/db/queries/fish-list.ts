@@ -10,7 +10,7 @@ export interface FishListRow extends Record<string, unknown> {
   species: FishListItem['species']
   scientific_name: string
   variety: string
-  sex: string
+  sex: FishListItem['sex']
   hatch_year: number | null
   hatch_year_estimated: boolean
   microchip: string | null

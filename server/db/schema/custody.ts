@@ -1,10 +1,11 @@
 import { boolean, index, pgEnum, pgTable, text, timestamp, uuid, varchar } from 'drizzle-orm/pg-core'
+import { HANDOVER_MEMBERS_OPTIONS } from '../../../shared/utils/enums'
 import { fish } from './fish'
 import { ponds } from './ponds'
 import { users } from './users'
 
 // What happens to the people of a pond when it changes hands (see server/utils/handovers.ts).
-export const handoverMembersOption = pgEnum('handover_members_option', ['stay', 'read_only', 'leave'])
+export const handoverMembersOption = pgEnum('handover_members_option', HANDOVER_MEMBERS_OPTIONS)
 
 /** An owner's offer of a whole pond to a new owner, accepted through a mailed link. */
 export const pondHandovers = pgTable('pond_handovers', {

@@ -1,12 +1,13 @@
 import { sql } from 'drizzle-orm'
 import { boolean, check, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, smallint, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { FISH_SEXES, FISH_SPECIES, FISH_STATUSES } from '../../../shared/utils/enums'
 import { timestamps } from './columns'
 import { ponds } from './ponds'
 import { users } from './users'
 
-export const fishSpecies = pgEnum('fish_species', ['koi', 'goldfish', 'other'])
-export const fishSex = pgEnum('fish_sex', ['unknown', 'male', 'female'])
-export const fishStatus = pgEnum('fish_status', ['alive', 'deceased', 'rehomed'])
+export const fishSpecies = pgEnum('fish_species', FISH_SPECIES)
+export const fishSex = pgEnum('fish_sex', FISH_SEXES)
+export const fishStatus = pgEnum('fish_status', FISH_STATUSES)
 
 export const fish = pgTable('fish', {
   id: uuid('id').primaryKey().defaultRandom(),
@@ -61,3 +62,15 @@ export const fishMeasurementSummary = pgTable('fish_measurement_summary', {
   weightAlert: boolean('weight_alert').notNull().default(false),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 })
+
+/**
+ * The loss rule behind `weight_alert` above, as one row: scripts/migrate.ts writes it from WEIGHT_LOSS_RULE in
+ * shared/utils/condition.ts on every start, and the summary function (drizzle/0022) reads it, so the SQL and the
+ * TypeScript rule cannot drift apart.
+ */
+export const weightLossRule = pgTable('weight_loss_rule', {
+  id: boolean('id').primaryKey().default(true),
+  lossPercent: doublePrecision('loss_percent').notNull(),
+  lossWindowDays: integer('loss_window_days').notNull(),
+  updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+}, t => [check('weight_loss_rule_one_row', sql`${t.id}`)])

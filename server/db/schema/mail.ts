@@ -1,7 +1,8 @@
 import { index, integer, pgEnum, pgTable, text, timestamp, uuid, varchar } from 'drizzle-orm/pg-core'
+import { OUTGOING_MAIL_STATUSES } from '../../../shared/utils/enums'
 import { timestamps } from './columns'
 
-export const outgoingMailStatus = pgEnum('outgoing_mail_status', ['queued', 'sent', 'failed'])
+export const outgoingMailStatus = pgEnum('outgoing_mail_status', OUTGOING_MAIL_STATUSES)
 
 /**
  * The mail outbox: a row is written in the same transaction as the thing it announces, and a

@@ -1,10 +1,11 @@
 import { sql } from 'drizzle-orm'
 import { customType, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { PHOTO_STATES, PHOTO_VIEWS } from '../../../shared/utils/enums'
 import { fish } from './fish'
 import { users } from './users'
 
-export const photoView = pgEnum('photo_view', ['top', 'left', 'right', 'closeup', 'other'])
-export const photoState = pgEnum('photo_state', ['pending', 'ready', 'failed'])
+export const photoView = pgEnum('photo_view', PHOTO_VIEWS)
+export const photoState = pgEnum('photo_state', PHOTO_STATES)
 
 export type PhotoVariant = { longSide: number, width: number, height: number, format: 'webp' | 'jpeg', bytes: number }
 

@@ -1,11 +1,12 @@
 import { boolean, date, index, jsonb, numeric, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import { VISIT_PURPOSES, WHOLE_POND_EVENT_KINDS } from '../../../shared/utils/enums'
 import { sql } from 'drizzle-orm'
 import { fish } from './fish'
 import { ponds } from './ponds'
 import { users } from './users'
 
-export const pondEventKind = pgEnum('pond_event_kind', ['salt', 'bath', 'water_change', 'mortality'])
-export const visitPurpose = pgEnum('visit_purpose', ['health_check', 'sick_call', 'surgery', 'follow_up'])
+export const pondEventKind = pgEnum('pond_event_kind', WHOLE_POND_EVENT_KINDS)
+export const visitPurpose = pgEnum('visit_purpose', VISIT_PURPOSES)
 
 /** A vet's call at a pond: open while the vet works there, closed with findings (the summary goes out then). */
 export const visits = pgTable('visits', {

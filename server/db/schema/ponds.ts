@@ -1,10 +1,11 @@
 import { boolean, index, integer, jsonb, numeric, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { POND_ROLES } from '../../../shared/utils/enums'
 import type { PondVolumeMeasurement } from '../../../shared/utils/pond-volume-schemas'
 import type { PondWaterTargets } from '../../../shared/utils/water-targets'
 import { timestamps } from './columns'
 import { users } from './users'
 
-export const pondRole = pgEnum('pond_role', ['owner', 'keeper', 'vet'])
+export const pondRole = pgEnum('pond_role', POND_ROLES)
 
 export const ponds = pgTable('ponds', {
   id: uuid('id').primaryKey().defaultRandom(),

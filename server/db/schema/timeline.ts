@@ -1,15 +1,12 @@
 import { boolean, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import { STORED_TIMELINE_KINDS } from '../../../shared/utils/enums'
 import { fish } from './fish'
 import { ponds } from './ponds'
 import { users } from './users'
 import { photos } from './photos'
 import { visits } from './pond-care'
 
-// move and owner_change are written by the custody work; they are listed now so the enum need not change then.
-export const timelineKind = pgEnum('timeline_kind', [
-  'measurement', 'observation', 'exam', 'problem', 'procedure', 'anaesthesia', 'treatment',
-  'lab_result', 'companion', 'death', 'photo', 'move', 'owner_change',
-])
+export const timelineKind = pgEnum('timeline_kind', STORED_TIMELINE_KINDS)
 
 export const timelineEntries = pgTable('timeline_entries', {
   id: uuid('id').primaryKey().defaultRandom(),

@@ -1,10 +1,11 @@
 import { sql } from 'drizzle-orm'
 import { boolean, index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid, varchar } from 'drizzle-orm/pg-core'
+import { DECIMAL_MARKS, UNIT_SYSTEMS } from '../../../shared/utils/enums'
 import { timestamps } from './columns'
 
-export const unitSystem = pgEnum('unit_system', ['metric', 'us'])
+export const unitSystem = pgEnum('unit_system', UNIT_SYSTEMS)
 // How the person writes decimals: read by shared/utils/decimal.ts for every number they type.
-export const decimalMark = pgEnum('decimal_mark', ['point', 'comma'])
+export const decimalMark = pgEnum('decimal_mark', DECIMAL_MARKS)
 
 export const users = pgTable('users', {
   id: uuid('id').primaryKey().defaultRandom(),

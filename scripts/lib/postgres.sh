@@ -1,57 +1,5 @@
-# Shared helpers for scripts/start.sh and scripts/test.sh. Sourced, never run on its own;
-# callers set `set -euo pipefail` first.
-
-ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
-STORAGE_DIR="$ROOT/storage"
-
-say() { printf '==> %s\n' "$*"; }
-warn() { printf '!!  %s\n' "$*" >&2; }
-die() {
-  printf '\nERROR: %s\n' "$*" >&2
-  exit 1
-}
-
-is_root() { [ "$(id -u)" -eq 0 ]; }
-
-sha256_of() { sha256sum "$1" | cut -d' ' -f1; }
-
-random_secret() {
-  # 48 hex characters; nuxt-auth-utils wants 32 or more.
-  if command -v openssl >/dev/null 2>&1; then
-    openssl rand -hex 24
-  else
-    node -e 'process.stdout.write(require("node:crypto").randomBytes(24).toString("hex") + "\n")'
-  fi
-}
-
-# --- npm ---------------------------------------------------------------------------------
-
-ensure_node_modules() {
-  local lock="$ROOT/package-lock.json"
-  local marker="$ROOT/node_modules/.fintrail-lock-sha"
-  [ -f "$lock" ] || die "package-lock.json is missing in $ROOT"
-  local want
-  want="$(sha256_of "$lock")"
-
-  if [ -d "$ROOT/node_modules" ]; then
-    if [ -f "$marker" ] && [ "$(cat "$marker")" = "$want" ]; then
-      return 0
-    fi
-    # npm writes node_modules/.package-lock.json on every install; when it is newer than the
-    # lock, npm itself installed after the lock last changed, so a second full install would
-    # only cost time.
-    if [ "$ROOT/node_modules/.package-lock.json" -nt "$lock" ]; then
-      printf '%s\n' "$want" >"$marker"
-      return 0
-    fi
-  fi
-
-  say "Installing npm packages (npm ci) ..."
-  (cd "$ROOT" && npm ci --no-audit --no-fund) || die "npm ci failed; see the output above."
-  printf '%s\n' "$want" >"$marker"
-}
-
-# --- Debian packages -----------------------------------------------------------------------
+# A private PostgreSQL cluster per checkout and purpose (dev, test), started from Debian's binaries on a
+# port of our own, its databases, and the migrations applied to them. Sourced after common.sh.
 
 pg_bin_dir() {
   local dir
@@ -59,38 +7,6 @@ pg_bin_dir() {
   [ -n "$dir" ] && [ -x "$dir/postgres" ] || return 1
   printf '%s\n' "$dir"
 }
-
-apt_package_present() {
-  local pkg="$1"
-  if [ "$pkg" = postgresql ]; then
-    # Any packaged server will do (postgresql-15, -16, ...), not only the meta package.
-    ls /usr/lib/postgresql/*/bin/postgres >/dev/null 2>&1
-    return
-  fi
-  dpkg-query -W -f='${Status}' "$pkg" 2>/dev/null | grep -q 'install ok installed'
-}
-
-ensure_apt_packages() {
-  local missing=() pkg
-  for pkg in "$@"; do
-    apt_package_present "$pkg" || missing+=("$pkg")
-  done
-  [ "${#missing[@]}" -eq 0 ] && return 0
-
-  if ! is_root; then
-    printf '\nERROR: these Debian packages are needed but not installed: %s\n' "${missing[*]}" >&2
-    printf 'Install them once as root, then run this again:\n' >&2
-    printf '  sudo apt-get update && sudo apt-get install -y --no-install-recommends %s\n' "${missing[*]}" >&2
-    exit 1
-  fi
-
-  say "Installing Debian packages: ${missing[*]}"
-  export DEBIAN_FRONTEND=noninteractive
-  apt-get update || die "apt-get update failed"
-  apt-get install -y --no-install-recommends "${missing[@]}" || die "apt-get install ${missing[*]} failed"
-}
-
-# --- PostgreSQL private clusters -----------------------------------------------------------
 
 # Root may not run initdb/postgres: everything server-side runs as the postgres OS user, from /
 # so it never tries to stat root's working directory.
@@ -159,7 +75,7 @@ pg_write_config() {
   local dir="$1" port="$2" fast="$3"
   local conf="$dir/fintrail.conf"
   {
-    printf '# Written by scripts/lib.sh on every start; edits here are lost.\n'
+    printf '# Written by scripts/lib/postgres.sh on every start; edits here are lost.\n'
     printf "listen_addresses = '127.0.0.1'\n"
     printf 'port = %s\n' "$port"
     printf "unix_socket_directories = '%s'\n" "$dir"
@@ -184,7 +100,7 @@ pg_initdb() {
   rm -f "$dir.initdb.log"
   # Trust only over the owner-only socket and loopback TCP; nothing listens elsewhere.
   pg_run tee "$dir/pg_hba.conf" >/dev/null <<'EOF'
-# Written by scripts/lib.sh. The server listens on 127.0.0.1 and on a socket inside the
+# Written by scripts/lib/postgres.sh. The server listens on 127.0.0.1 and on a socket inside the
 # data folder (mode 0700) only.
 local   all   all                  trust
 host    all   all   127.0.0.1/32   trust
@@ -223,12 +139,12 @@ pg_cluster_start() {
       say "Reusing the running '$name' database cluster (port $port, files in $dir)."
     else
       say "Restarting the '$name' database cluster on port $port (files in $dir) ..."
-      pg_run "$PG_BIN/pg_ctl" -D "$dir" -m fast -w restart -l "$dir/server.log" >/dev/null ||
+      (exec_without_inherited_fds "${PG_AS[@]}" "$PG_BIN/pg_ctl" -D "$dir" -m fast -w restart -l "$dir/server.log") >/dev/null ||
         die "could not restart PostgreSQL; see $dir/server.log"
     fi
   else
     say "Starting the '$name' database cluster on 127.0.0.1:$port (files in $dir) ..."
-    if ! pg_run "$PG_BIN/pg_ctl" -D "$dir" -w -t 60 -l "$dir/server.log" start >/dev/null; then
+    if ! (exec_without_inherited_fds "${PG_AS[@]}" "$PG_BIN/pg_ctl" -D "$dir" -w -t 60 -l "$dir/server.log" start) >/dev/null; then
       tail -n 20 "$dir/server.log" >&2 || true
       die "PostgreSQL did not start (port $port busy?); log: $dir/server.log"
     fi
@@ -295,79 +211,6 @@ pg_start_command_json() {
 pg_stop_command_json() {
   local dir="$1"
   json_array "${PG_AS[@]}" "$PG_BIN/pg_ctl" -D "$dir" -m fast -w stop
-}
-
-json_array() { node -e 'process.stdout.write(JSON.stringify(process.argv.slice(1)))' -- "$@"; }
-
-# --- sessions ---------------------------------------------------------------------------
-
-ensure_session_secret() {
-  if [ -n "${NUXT_SESSION_PASSWORD:-}" ]; then
-    export NUXT_SESSION_PASSWORD
-    return 0
-  fi
-  local file="$STORAGE_DIR/session-secret"
-  mkdir -p "$STORAGE_DIR"
-  if [ ! -s "$file" ]; then
-    (umask 077 && random_secret >"$file")
-  fi
-  chmod 600 "$file"
-  NUXT_SESSION_PASSWORD="$(tr -d '\n' <"$file")"
-  export NUXT_SESSION_PASSWORD
-}
-
-# --- processes and ports ---------------------------------------------------------------
-
-port_in_use() {
-  (exec 3<>"/dev/tcp/127.0.0.1/$1") 2>/dev/null
-}
-
-require_free_port() {
-  local port="$1" what="$2"
-  if port_in_use "$port"; then
-    die "port $port on 127.0.0.1 is already in use, but $what needs it. Is another copy still running? Stop it first."
-  fi
-}
-
-# wait_for_port PORT PID WHAT [SECONDS]
-wait_for_port() {
-  local port="$1" pid="$2" what="$3" seconds="${4:-30}" i
-  for i in $(seq 1 $((seconds * 10))); do
-    port_in_use "$port" && return 0
-    kill -0 "$pid" 2>/dev/null || die "$what exited before listening on port $port"
-    sleep 0.1
-  done
-  die "$what did not listen on port $port within ${seconds}s"
-}
-
-# stop_process PID — TERM, then KILL after 10 s.
-stop_process() {
-  local pid="$1" i
-  [ -n "$pid" ] && kill -0 "$pid" 2>/dev/null || return 0
-  kill -TERM "$pid" 2>/dev/null || true
-  for i in $(seq 1 100); do
-    kill -0 "$pid" 2>/dev/null || break
-    sleep 0.1
-  done
-  kill -0 "$pid" 2>/dev/null && kill -KILL "$pid" 2>/dev/null || true
-  wait "$pid" 2>/dev/null || true
-}
-
-start_mail_server() {
-  local smtp_port="$1" inbox_port="$2" mail_dir="$3" log="${4:-}"
-  require_free_port "$smtp_port" "fake SMTP"
-  require_free_port "$inbox_port" "mail inbox"
-  mkdir -p "$mail_dir"
-  if [ -n "$log" ]; then
-    SMTP_PORT="$smtp_port" INBOX_PORT="$inbox_port" MAIL_DIR="$mail_dir" \
-      node "$ROOT/scripts/mail-server.mjs" >"$log" 2>&1 &
-  else
-    SMTP_PORT="$smtp_port" INBOX_PORT="$inbox_port" MAIL_DIR="$mail_dir" \
-      node "$ROOT/scripts/mail-server.mjs" &
-  fi
-  MAIL_PID=$!
-  wait_for_port "$smtp_port" "$MAIL_PID" "the mail server"
-  wait_for_port "$inbox_port" "$MAIL_PID" "the mail server"
 }
 
 run_migrations() {
