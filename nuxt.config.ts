@@ -2,8 +2,12 @@
 import { build } from 'esbuild'
 import { buildUploadWorker } from './scripts/build-upload-worker'
 
+// CSP source keywords keep their quotes in the header.
+const SELF = '\'self\''
+const NONE = '\'none\''
+
 export default defineNuxtConfig({
-  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint'],
+  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint', 'nuxt-security'],
   devtools: { enabled: false },
   app: {
     head: {
@@ -56,6 +60,11 @@ export default defineNuxtConfig({
       cookie: { secure: true, sameSite: 'lax', httpOnly: true },
     },
   },
+  experimental: {
+    // A link's page code loads when the person is about to follow it (pointer over it, focus, touch), not
+    // for every link that scrolls into view: on a slow link the profile would fetch four other pages' code.
+    defaults: { nuxtLink: { prefetchOn: { visibility: false, interaction: true } } },
+  },
   compatibilityDate: '2026-01-01',
   nitro: {
     hooks: {
@@ -70,12 +79,71 @@ export default defineNuxtConfig({
         })
       },
     },
+    // Built assets are written with .br and .gz copies beside them and served in the encoding the browser takes.
+    compressPublicAssets: { gzip: true, brotli: true },
     experimental: { tasks: true },
     // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
     scheduledTasks: { '0 * * * *': ['photos:purge'] },
   },
   typescript: { strict: true },
   telemetry: false,
+  hooks: {
+    // Lazy parts (the uploader, the charts, the entry forms) load when they are opened or scrolled to. Hinting
+    // every one of them for prefetch would send them all anyway, competing with the page on a slow link.
+    'build:manifest'(manifest) {
+      for (const chunk of Object.values(manifest)) chunk.prefetch = false
+    },
+  },
   eslint: { config: { stylistic: true } },
+  // Security headers only (nuxt-security). Its request guards are off: the app has its own sign-in limiter,
+  // same-origin check and text-input check, and a size limiter or XSS filter would refuse tus chunks,
+  // archives and ordinary JSON. Upgrading requests to https is added at run time for an https origin
+  // (server/plugins/security-origin.ts): on a plain-http LAN address it would break every asset.
+  security: {
+    headers: {
+      contentSecurityPolicy: {
+        'default-src': [SELF],
+        'base-uri': [NONE],
+        'connect-src': [SELF],
+        // Fonts are bundled files; data: covers small fonts a stylesheet inlines.
+        'font-src': [SELF, 'data:'],
+        'form-action': [SELF],
+        'frame-ancestors': [NONE],
+        'frame-src': [NONE],
+        // blob: for the previews of a chosen photo (uploader thumbnails, which-fish); data: for inline icons.
+        'img-src': [SELF, 'data:', 'blob:'],
+        'manifest-src': [SELF],
+        'media-src': [SELF],
+        'object-src': [NONE],
+        // Only scripts carrying this response's nonce, and what they load ('strict-dynamic'); no eval.
+        'script-src': [SELF, '\'strict-dynamic\'', '\'nonce-{{nonce}}\''],
+        'script-src-attr': [NONE],
+        // Vue, Uppy and Chart.js set style attributes; styles cannot run code.
+        'style-src': [SELF, '\'unsafe-inline\''],
+        'worker-src': [SELF],
+        'upgrade-insecure-requests': false,
+      },
+      crossOriginEmbedderPolicy: 'credentialless',
+      // Stricter than no-referrer would break our own POSTs: Chromium then sends "Origin: null",
+      // which the same-origin check refuses.
+      referrerPolicy: 'strict-origin-when-cross-origin',
+      // Browsers ignore it over plain http; behind https it keeps the next visits on https.
+      strictTransportSecurity: { maxAge: 15552000, includeSubdomains: false },
+      xContentTypeOptions: 'nosniff',
+      xFrameOptions: 'DENY',
+      // The camera stays allowed for this site only: taking a photo at the pond side.
+      permissionsPolicy: { 'camera': ['self'], 'display-capture': [], 'fullscreen': [], 'geolocation': [], 'microphone': [] },
+    },
+    nonce: true,
+    sri: true,
+    hidePoweredBy: true,
+    removeLoggers: false,
+    rateLimiter: false,
+    requestSizeLimiter: false,
+    xssValidator: false,
+    corsHandler: false,
+    allowedMethodsRestricter: false,
+    csrf: false,
+  },
   tailwindcss: { cssPath: '~/assets/css/main.css', viewer: false },
 })

@@ -91,7 +91,8 @@ export NUXT_APP_ORIGIN="$APP_ORIGIN"
 export NUXT_SMTP_HOST=127.0.0.1 NUXT_SMTP_PORT="$SMTP_PORT"
 # nuxt-auth-utils marks the cookie Secure; browsers drop that on plain http except localhost.
 case "$APP_ORIGIN" in http://*) export NUXT_SESSION_COOKIE_SECURE=false ;; esac
-node "$ROOT/.output/server/index.mjs" &
+# One server process per core behind the one port (FINTRAIL_WORKERS=1 for a single process).
+node "$ROOT/scripts/cluster.mjs" "$ROOT/.output/server/index.mjs" &
 APP_PID=$!
 wait_for_port "$PORT" "$APP_PID" "the app" 60
 

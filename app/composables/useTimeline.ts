@@ -5,8 +5,13 @@ export function useFishFacts(fishId: MaybeRefOrGetter<string>) {
   return useFetch<StandingFacts>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
 }
 
-export function useFishGrowth(fishId: MaybeRefOrGetter<string>) {
-  return useFetch<FishGrowth>(() => `/api/fish/${toValue(fishId)}/growth`, { key: `fish-growth-${toValue(fishId)}` })
+/** The chart's sample of a long series by default; `every` (the printed record, "show every measurement") asks for all. */
+export function useFishGrowth(fishId: MaybeRefOrGetter<string>, every: MaybeRefOrGetter<boolean> = false) {
+  return useFetch<FishGrowth>(() => `/api/fish/${toValue(fishId)}/growth`, {
+    // The printed record's full series is cached apart from the profile's sample.
+    key: `fish-growth-${toValue(fishId)}${toValue(every) === true ? '-all' : ''}`,
+    query: computed(() => (toValue(every) ? { points: 'all' } : {})),
+  })
 }
 
 export function usePondLengthWeight(pondId: MaybeRefOrGetter<string>) {
@@ -15,7 +20,7 @@ export function usePondLengthWeight(pondId: MaybeRefOrGetter<string>) {
 
 /** Everything on the profile that an entry can change; refreshed together after a write. */
 export function fishRecordKeys(fishId: string) {
-  return [`fish-${fishId}`, `fish-facts-${fishId}`, `fish-growth-${fishId}`, `fish-timeline-${fishId}`, `fish-history-${fishId}`]
+  return [`fish-${fishId}`, `fish-facts-${fishId}`, `fish-growth-${fishId}`, `fish-growth-${fishId}-all`, `fish-timeline-${fishId}`, `fish-history-${fishId}`]
 }
 
 /**

@@ -1,6 +1,7 @@
 // Shared pieces of the benchmarks: a built server on its own port, a signed-in cookie, autocannon and SQL timing.
 import { spawn } from 'node:child_process'
-import { readFileSync } from 'node:fs'
+import { appendFileSync, readFileSync } from 'node:fs'
+import http from 'node:http'
 import { resolve } from 'node:path'
 import autocannon from 'autocannon'
 import type pg from 'pg'
@@ -8,20 +9,32 @@ import type pg from 'pg'
 export const ROOT = resolve(import.meta.dirname, '../..')
 export const BENCH_PASSWORD = 'benchmark pond password'
 
-export async function startBenchServer(port: number, extraEnv: Record<string, string> = {}) {
-  const child = spawn(process.execPath, [process.env.BENCH_SERVER_ENTRY ?? resolve(ROOT, '.output/server/index.mjs')], {
+/** SIGTERM, and resolves when the process (with its cluster workers) has gone and the port is free. */
+function stopChild(child: ReturnType<typeof spawn>) {
+  const gone = new Promise<void>(done => (child.exitCode != null ? done() : child.once('exit', () => done())))
+  child.kill('SIGTERM')
+  return gone
+}
+
+/** The built server on its own port; `workers` > 1 runs it as `npm start` does, one process per core (scripts/cluster.mjs). */
+export async function startBenchServer(port: number, extraEnv: Record<string, string> = {}, workers = 1) {
+  const entry = process.env.BENCH_SERVER_ENTRY ?? resolve(ROOT, '.output/server/index.mjs')
+  // BENCH_NODE_ARGS="--cpu-prof --cpu-prof-dir=/tmp/prof" profiles the server (written when it stops).
+  const nodeArgs = (process.env.BENCH_NODE_ARGS ?? '').split(' ').filter(Boolean)
+  const args = [...nodeArgs, ...(workers > 1 ? [resolve(ROOT, 'scripts/cluster.mjs'), entry] : [entry])]
+  const child = spawn(process.execPath, args, {
     cwd: ROOT,
     env: {
       ...process.env, NODE_ENV: 'production', HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', PORT: String(port), NITRO_PORT: String(port),
       NUXT_DATABASE_URL: process.env.DATABASE_URL, NUXT_SESSION_COOKIE_SECURE: 'false', NUXT_APP_ORIGIN: `http://127.0.0.1:${port}`,
-      NUXT_STORAGE_DIR: process.env.BENCH_STORAGE_DIR, ...extraEnv,
+      NUXT_STORAGE_DIR: process.env.BENCH_STORAGE_DIR, FINTRAIL_WORKERS: String(workers), ...extraEnv,
     },
     stdio: ['ignore', 'inherit', 'inherit'],
   })
   const url = `http://127.0.0.1:${port}`
   for (let i = 0; i < 200; i++) {
     try {
-      if ((await fetch(`${url}/api/health`)).ok) return { url, pid: child.pid!, stop: () => child.kill('SIGTERM') }
+      if ((await fetch(`${url}/api/health`)).ok) return { url, pid: child.pid!, stop: () => stopChild(child) }
     }
     catch { /* starting */ }
     await new Promise(r => setTimeout(r, 100))
@@ -72,3 +85,53 @@ export function peakMemoryMiB(pid: number) {
   const status = readFileSync(`/proc/${pid}/status`, 'utf8')
   return Number(status.match(/VmHWM:\s+(\d+) kB/)![1]) / 1024
 }
+
+/** One line of the table `npm run bench` prints at the end: a figure beside what it is compared with. */
+export interface BenchRow {
+  what: string
+  figure: string
+  comparison: string
+  goal: string
+  /** null when the row has no goal of its own (a reference figure). */
+  met: boolean | null
+}
+
+/** Prints the row now and keeps it for run.sh's closing table (BENCH_RESULTS names a JSON Lines file). */
+export function record(row: BenchRow) {
+  const verdict = row.met == null ? '' : row.met ? ' [met]' : ' [NOT met]'
+  console.log(`  ${row.what}: ${row.figure} | ${row.comparison} | goal ${row.goal}${verdict}`)
+  if (process.env.BENCH_RESULTS) appendFileSync(process.env.BENCH_RESULTS, JSON.stringify({ benchmark: process.env.BENCH_NAME ?? '', ...row }) + '\n')
+}
+
+export const percentileOf = (values: number[], p: number) => [...values].sort((a, b) => a - b)[Math.min(values.length - 1, Math.ceil(values.length * p) - 1)]!
+
+/**
+ * One connection, one request after another, timed in this process with sub-millisecond resolution
+ * (autocannon rounds to whole milliseconds, too coarse beside a 1 ms SQL figure). The body is read in full.
+ */
+export async function sequentialTimes(url: string, headers: Record<string, string>, requests: number, warmup = 20) {
+  const agent = new http.Agent({ keepAlive: true, maxSockets: 1 })
+  const once = () => new Promise<{ status: number, bytes: number }>((done, fail) => {
+    http.get(url, { agent, headers }, (response) => {
+      let bytes = 0
+      response.on('data', (part: Buffer) => (bytes += part.length))
+      response.on('end', () => done({ status: response.statusCode!, bytes }))
+      response.on('error', fail)
+    }).on('error', fail)
+  })
+  for (let i = 0; i < warmup; i++) await once()
+  const times: number[] = []
+  let failures = 0
+  const started = performance.now()
+  for (let i = 0; i < requests; i++) {
+    const t0 = performance.now()
+    const { status } = await once()
+    times.push(performance.now() - t0)
+    if (status !== 200) failures++
+  }
+  const seconds = (performance.now() - started) / 1000
+  agent.destroy()
+  return { p50: percentileOf(times, 0.5), p99: percentileOf(times, 0.99), requestsPerSecond: requests / seconds, failures }
+}
+
+export const ms = (value: number) => `${value < 10 ? value.toFixed(2) : value.toFixed(1)} ms`

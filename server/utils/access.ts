@@ -70,15 +70,17 @@ export interface FishAccess {
 }
 
 /** Same rule for a fish: it is visible only through a membership of the pond it lives in. */
-export async function requireFishRole(event: H3Event, fishId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<FishAccess> {
+export async function requireFishRole(event: H3Event, fishId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<FishAccess & { pondName: string }> {
   const user = requireUser(event)
-  const [row] = await useDb().select({ fish: schema.fish, ...membershipColumns })
+  // The pond's name comes in the same statement: the profile shows it, and a second round trip cost more than the join.
+  const [row] = await useDb().select({ fish: schema.fish, ...membershipColumns, pondName: schema.ponds.name })
     .from(schema.fish)
     .innerJoin(schema.memberships, membershipOfFishPond(user.id))
+    .innerJoin(schema.ponds, eq(schema.ponds.id, schema.fish.pondId))
     .where(eq(schema.fish.id, fishId))
     .limit(1)
-  const { fish, role, readOnly } = decide(event, row, 'Fish', roles)
-  return { user, role, readOnly, fish }
+  const { fish, role, readOnly, pondName } = decide(event, row, 'Fish', roles)
+  return { user, role, readOnly, fish, pondName }
 }
 
 export interface EntryAccess extends FishAccess {

@@ -73,17 +73,27 @@ function decodeRejection(error: unknown): PhotoRejection | null {
   return new PhotoRejection(422, 'The photo file is damaged and cannot be read. Upload the photo again from the phone\'s own gallery.')
 }
 
+/** Encoder settings, shared with the benchmark's ImageMagick run so both make the same files. */
+export const DERIVED_ENCODING = {
+  webp: { quality: 80, effort: 2 },
+  jpeg: { quality: 82, progressive: false },
+} as const
+
 /**
- * Decodes once (EXIF orientation applied, at most 2048 px on the long side), then writes every
- * derived size as WebP plus a JPEG fallback. sharp writes no metadata unless asked: GPS, camera,
- * dates and the ICC profile (converted to sRGB first) stay behind in the original.
+ * Decodes once (EXIF orientation applied, at most 2048 px on the long side; libvips shrinks a JPEG while
+ * decoding when it is at least twice that), then each smaller size is resized from the one above it,
+ * and every size is written as WebP plus a JPEG fallback from the same pixels. sharp writes no metadata
+ * unless asked: GPS, camera, dates and the ICC profile (converted to sRGB first) stay behind in the original.
+ * WebP effort 2 (of 0-6) and a baseline JPEG: the encoders are most of the time, and effort 4 or a
+ * progressive scan doubled it for files a few per cent smaller (scripts/bench/photos.ts).
  */
 export async function makeDerived(originalPath: string, outDir: string): Promise<PhotoVariant[]> {
-  let decoded: { data: Buffer, info: OutputInfo }
+  const largest = DERIVED_SIZES.at(-1)!
+  let current: { data: Buffer, info: OutputInfo }
   try {
-    decoded = await sharp(originalPath, { limitInputPixels: MAX_INPUT_PIXELS, failOn: 'error' })
+    current = await sharp(originalPath, { limitInputPixels: MAX_INPUT_PIXELS, failOn: 'error' })
       .rotate()
-      .resize(DERIVED_SIZES.at(-1), DERIVED_SIZES.at(-1), { fit: 'inside', withoutEnlargement: true })
+      .resize(largest, largest, { fit: 'inside', withoutEnlargement: true })
       .toColourspace('srgb')
       .raw({ depth: 'uchar' })
       .toBuffer({ resolveWithObject: true })
@@ -92,15 +102,16 @@ export async function makeDerived(originalPath: string, outDir: string): Promise
     const rejection = decodeRejection(error)
     throw rejection ?? error
   }
-  const { data, info } = decoded
   await mkdir(outDir, { recursive: true })
   const variants: PhotoVariant[] = []
+  const pixels = ({ data, info }: { data: Buffer, info: OutputInfo }) => sharp(data, { raw: { width: info.width, height: info.height, channels: info.channels as 1 | 2 | 3 | 4 } })
   for (const longSide of [...DERIVED_SIZES].reverse()) {
-    const resized = sharp(data, { raw: { width: info.width, height: info.height, channels: info.channels as 1 | 2 | 3 | 4 } })
-      .resize(longSide, longSide, { fit: 'inside', withoutEnlargement: true })
-      // One output at a time: each holds a thread of the pool while it encodes.
-    const webp = await resized.clone().webp({ quality: 80, effort: 4 }).toFile(join(outDir, `${longSide}.webp`))
-    const jpeg = await resized.clone().flatten({ background: '#ffffff' }).jpeg({ quality: 82, progressive: true }).toFile(join(outDir, `${longSide}.jpg`))
+    if (Math.max(current.info.width, current.info.height) > longSide) {
+      current = await pixels(current).resize(longSide, longSide, { fit: 'inside' }).raw().toBuffer({ resolveWithObject: true })
+    }
+    // One output at a time: each holds a thread of the pool while it encodes.
+    const webp = await pixels(current).webp(DERIVED_ENCODING.webp).toFile(join(outDir, `${longSide}.webp`))
+    const jpeg = await pixels(current).flatten({ background: '#ffffff' }).jpeg(DERIVED_ENCODING.jpeg).toFile(join(outDir, `${longSide}.jpg`))
     variants.push({ longSide, width: webp.width, height: webp.height, format: 'webp', bytes: webp.size })
     variants.push({ longSide, width: jpeg.width, height: jpeg.height, format: 'jpeg', bytes: jpeg.size })
   }

@@ -6,11 +6,13 @@ import pLimit from 'p-limit'
 import { PHOTO_PROCESSING_CONCURRENCY } from '#shared/utils/photo-limits'
 import type { PhotoRow } from '#shared/types/rows'
 import { makeDerived, readPhotoHeader } from './photo-derive'
+import { perProcessShare } from './process-share'
 import { PhotoRejection, sha256OfFile, sniffPhotoType } from './photo-files'
 import { derivedDir, originalPath, uploadPath } from './photo-storage'
 
-// Whole photo jobs (sniff, hash, decode, encode) run at most this many at once, in this process.
-const photoJobs = pLimit(PHOTO_PROCESSING_CONCURRENCY)
+// Whole photo jobs (sniff, hash, decode, encode) run at most this many at once on the machine (split
+// between the server processes when it runs one per core).
+const photoJobs = pLimit(perProcessShare(PHOTO_PROCESSING_CONCURRENCY))
 
 export const BUSY = 'busy' as const
 

@@ -2,6 +2,7 @@ import { existsSync } from 'node:fs'
 import { dirname, join } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import Piscina from 'piscina'
+import { perProcessShare } from './process-share'
 import type { Spreadsheet } from '../workers/spreadsheet-read'
 import type { UploadTask, UploadTaskResult } from '../workers/upload-task'
 
@@ -34,7 +35,7 @@ function uploadPool() {
   pool ??= new Piscina({
     filename: workerFile(),
     minThreads: 0,
-    maxThreads: UPLOAD_WORKER_LIMITS.threads,
+    maxThreads: perProcessShare(UPLOAD_WORKER_LIMITS.threads),
     maxQueue: UPLOAD_WORKER_LIMITS.queue,
     idleTimeout: 30_000,
     resourceLimits: { maxOldGenerationSizeMb: UPLOAD_WORKER_LIMITS.heapMb, maxYoungGenerationSizeMb: 16, stackSizeMb: 4 },

@@ -103,8 +103,14 @@ export interface GrowthMarker {
 }
 
 export interface FishGrowth {
+  /** Every measurement, or with a long history the ones the chart needs (see `sampled`). */
   points: GrowthPoint[]
+  /** How many measurements the fish has in all. */
+  totalPoints: number
+  /** True when `points` is a shape-keeping sample; `?points=all` gives every one. */
+  sampled: boolean
   markers: GrowthMarker[]
+  /** Always computed from every weighing, sampled or not. */
   alerts: WeightChangeAlert[]
 }
 

@@ -63,6 +63,11 @@ export const fishListQuerySchema = z.strictObject({
 
 export const fishIdParams = z.object({ fishId: z.uuid('Not a valid id') })
 
+/** The growth series: a chart-sized sample by default, every measurement with `points=all`. */
+export const growthQuerySchema = z.strictObject({
+  points: z.enum(['chart', 'all'], 'Either chart or all').optional(),
+})
+
 /** Turns the form's "estimated age" into the stored hatch year, marked as an estimate. */
 export function hatchYearFrom(input: { hatchYear?: number | null, estimatedAgeYears?: number }, now = new Date()) {
   if (input.estimatedAgeYears != null) return { hatchYear: now.getFullYear() - Math.round(input.estimatedAgeYears), hatchYearEstimated: true }

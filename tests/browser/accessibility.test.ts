@@ -135,6 +135,7 @@ describe('WCAG 2.1 AA (axe-core) at 390 px and 1280 px', () => {
     await page.getByTestId('view-table').click()
     await page.getByTestId('fish-table').waitFor()
     found.push(...await axeAtBothWidths(page, 'owner: pond table'))
+    await page.locator('#length-weight-heading').scrollIntoViewIfNeeded()
     await page.getByTestId('length-weight-table-toggle').click()
     await page.getByTestId('length-weight-table').waitFor()
     found.push(...await axeAtBothWidths(page, 'owner: length–weight chart as a table'))
@@ -170,6 +171,8 @@ describe('WCAG 2.1 AA (axe-core) at 390 px and 1280 px', () => {
     await signIn(page, OWNER, DEMO_PASSWORD)
     const { saffronId } = garden
     await visit(page, `/fish/${saffronId}`)
+    // The growth section loads when it comes near the screen.
+    await page.locator('#growth-heading').scrollIntoViewIfNeeded()
     await page.getByTestId('growth-table-toggle').click()
     await page.getByTestId('growth-table').waitFor()
     found.push(...await axeAtBothWidths(page, 'owner: growth chart as a table'))

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { BrowserContext, Page } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
+import { openBrowser, screenshots, scrollThrough, signIn } from '../support/browser'
 import { ApiClient } from '../support/client'
 import { closeTestDb, testDb } from '../support/db'
 
@@ -107,6 +107,7 @@ describe('the life record in Chromium', () => {
     const page = await browser.newPage()
     await signIn(page, KEEPER, DEMO_PASSWORD)
     await page.goto(`/fish/${fishId}`)
+    await scrollThrough(page)
     await page.getByTestId('growth-chart').waitFor()
     const before = await page.locator('[data-testid="growth-chart"] canvas').getAttribute('aria-label')
     await page.getByTestId('add-measurement').click()
@@ -241,6 +242,8 @@ describe('the life record in Chromium', () => {
     const page = await browser.newPage()
     await signIn(page, KEEPER, DEMO_PASSWORD)
     await page.getByTestId('pond-Garden pond').click()
+    await page.getByRole('heading', { name: 'Length and weight' }).waitFor()
+    await scrollThrough(page)
     await page.getByTestId('length-weight-chart').waitFor()
     expect(await page.getByTestId('length-weight-fits').textContent()).toMatch(/Koi\s+Cyprinus carpio:.*b = \d\.\d\d/)
     await page.getByTestId('view-table').click()
@@ -250,6 +253,8 @@ describe('the life record in Chromium', () => {
     await saffron.getByRole('link', { name: 'Saffron' }).click()
     await page.getByTestId('fact-problems').waitFor()
     expect(await page.getByTestId('fact-problems').textContent()).toContain('Weight loss, cause not yet known')
+    await page.getByRole('heading', { name: 'Growth and condition' }).waitFor()
+    await scrollThrough(page)
     expect(await page.getByTestId('growth-alerts').textContent()).toMatch(/Weight fell 1\d\.\d %/)
     await screenshots(page, 'fish-profile-losing-weight')
     await page.close()

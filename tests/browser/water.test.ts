@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { BrowserContext } from 'playwright-core'
 import { injectionVolumeMl } from '../../shared/utils/doses'
 import { roundForSyringe } from '../../shared/utils/dose-helpers'
-import { openBrowser, screenshots, signIn } from '../support/browser'
+import { openBrowser, screenshots, scrollThrough, signIn } from '../support/browser'
 import { ApiClient } from '../support/client'
 import { closeTestDb } from '../support/db'
 
@@ -70,6 +70,7 @@ describe('the water log in Chromium', () => {
     expect(stored.nitriteNMgL).toBeCloseTo(0.076117, 6)
     expect(stored.testedBy.name).toBe('Tom Marlow')
 
+    await scrollThrough(page)
     await page.getByTestId('water-chart-temperatureC').locator('canvas').waitFor()
     const events = page.getByTestId('water-chart-events')
     await events.waitFor()

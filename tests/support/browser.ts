@@ -50,3 +50,13 @@ export async function screenshots(page: Page, name: string) {
   }
   if (original) await page.setViewportSize(original)
 }
+
+/** Scrolls to the end of the page half a screen at a time, as a reader would, so parts that load when seen (charts) load. */
+export async function scrollThrough(page: Page) {
+  await page.evaluate(async () => {
+    for (let y = 0; y <= document.documentElement.scrollHeight; y += window.innerHeight / 2) {
+      window.scrollTo(0, y)
+      await new Promise(done => setTimeout(done, 60))
+    }
+  })
+}

@@ -1,4 +1,5 @@
-import { fishIdParams } from '#shared/utils/fish-schemas'
+import { fishIdParams, growthQuerySchema } from '#shared/utils/fish-schemas'
+import { sampleGrowthPoints } from '#shared/utils/growth-sampling'
 import { fultonK, weightChangeAlert } from '#shared/utils/condition'
 import type { FishGrowth, GrowthMarker } from '#shared/types/timeline'
 import { growthSql, type GrowthRow } from '../../../db/queries/timeline'
@@ -12,6 +13,7 @@ function markerLabel(e: GrowthRow['events'][number]) {
 export default defineEventHandler(async (event): Promise<FishGrowth> => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   const { fish } = await requireFishRole(event, fishId)
+  const query = await queryValidated(event, growthQuerySchema)
   const { rows: [row] } = await useDb().execute<GrowthRow>(growthSql(fishId))
   const g = row!
   const points = g.points.map(p => ({
@@ -23,5 +25,8 @@ export default defineEventHandler(async (event): Promise<FishGrowth> => {
     ...g.companion_deaths.map(d => ({ entryId: d.entryId, at: new Date(d.at).toISOString(), kind: 'companion_death' as const, label: `${d.fishName} died` })),
   ].sort((a, b) => a.at.localeCompare(b.at))
   const weights = points.filter(p => p.weightG != null).map(p => ({ date: p.at, weightG: p.weightG! }))
-  return { points, markers, alerts: weightChangeAlert(weights, fish.hatchYear != null ? { hatchYear: fish.hatchYear } : {}) }
+  const alerts = weightChangeAlert(weights, fish.hatchYear != null ? { hatchYear: fish.hatchYear } : {})
+  // A chart a screen wide shows a few hundred points; a life of weekly weighings is sent in full only when asked.
+  const shown = query.points === 'all' ? points : sampleGrowthPoints(points)
+  return { points: shown, totalPoints: points.length, sampled: shown.length < points.length, markers, alerts }
 })

@@ -1,0 +1,12 @@
+// Prints the rows the benchmarks recorded (JSON Lines, see record() in support.ts) as one Markdown table.
+import { readFileSync } from 'node:fs'
+import { availableParallelism, cpus, totalmem } from 'node:os'
+import type { BenchRow } from './support'
+
+const file = process.argv[2]!
+const rows = readFileSync(file, 'utf8').split('\n').filter(Boolean).map(line => JSON.parse(line) as BenchRow & { benchmark: string })
+const cell = (text: string) => text.replaceAll('|', '\\|')
+console.log(`\nMachine: ${availableParallelism()} cores (${cpus()[0]?.model.trim()}), ${(totalmem() / 2 ** 30).toFixed(1)} GiB, Node ${process.version}; ${new Date().toISOString().slice(0, 16).replace('T', ' ')} UTC\n`)
+console.log('| benchmark | what | figure | compared with (same run) | goal | met |')
+console.log('|---|---|---|---|---|---|')
+for (const r of rows) console.log(`| ${r.benchmark} | ${cell(r.what)} | ${cell(r.figure)} | ${cell(r.comparison)} | ${cell(r.goal)} | ${r.met == null ? '–' : r.met ? 'yes' : 'no'} |`)
