@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import type { BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { openBrowser, signIn } from '../support/browser'
+import { openBrowser, scrollThrough, signIn } from '../support/browser'
 import { closeTestDb, testDb } from '../support/db'
 import { MAIN_URL } from '../support/env'
 import { pondWithRoles } from '../support/factories'
@@ -165,6 +165,8 @@ describe('the Content-Security-Policy in Chromium', () => {
 
     // The pond's length–weight chart, then "Which fish is this?" with a photo from the phone (a blob: preview).
     await visit(page, `/ponds/${garden}`)
+    // Charts load when scrolled to, as a person would.
+    await scrollThrough(page)
     await page.getByTestId('length-weight-chart').locator('canvas').waitFor()
     const photo = join(files, 'at-the-pond.jpg')
     writeFileSync(photo, await makeKoiPhoto(5))
@@ -174,6 +176,7 @@ describe('the Content-Security-Policy in Chromium', () => {
 
     // The growth chart, the photo viewer with its large copy, and the uploader with a chosen photo's thumbnail.
     await visit(page, `/fish/${fish}`)
+    await scrollThrough(page)
     await page.locator('[data-testid="growth-chart"] canvas').waitFor()
     const tile = page.locator('[data-testid^="photo-"][data-state="ready"]').first()
     await tile.getByRole('button').first().click()
@@ -218,6 +221,7 @@ describe('the Content-Security-Policy in Chromium', () => {
     await page.locator('[data-testid^="photo-"][data-state="ready"]').first().waitFor({ timeout: 30_000 })
 
     await visit(page, `/ponds/${pond.id}/water`)
+    await scrollThrough(page)
     await page.getByTestId('water-chart-temperatureC').locator('canvas').waitFor()
 
     await visit(page, `/ponds/${pond.id}/visits/${visitId}`)
