@@ -167,6 +167,7 @@ describe('the Content-Security-Policy in Chromium', () => {
 
     // The pond's length–weight chart, then "Which fish is this?" with a photo from the phone (a blob: preview).
     await visit(page, `/ponds/${garden}`)
+    // Charts load when scrolled to, as a person would.
     await scrollThrough(page)
     await page.getByTestId('length-weight-chart').locator('canvas').waitFor()
     await page.evaluate(() => window.scrollTo(0, 0))
