@@ -42,6 +42,8 @@ export default defineNuxtConfig({
     jobsSchema: 'pgboss',
     // First automatic retry of a photo whose files could not be written (doubled each time).
     photoRetryDelaySeconds: 30,
+    // How often each instance finishes photos whose instance stopped mid-way (0: only at start).
+    photoRecoveryIntervalSeconds: 60,
     // Failed sign-ins in the window: per account and address (then 429), per address over all accounts
     // (then 429), and per account from anywhere, above which each attempt waits up to the cap.
     signInLimit: 10,

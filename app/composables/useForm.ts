@@ -14,6 +14,18 @@ export function useForm<S extends z.ZodType>(schema: S) {
   const pending = ref(false)
   const numberFields = provideNumberFields()
 
+  // After a refusal, focus goes to the first field (in page order) with a message: the screen reader reads
+  // its label and, through aria-describedby (UiField, UiNumberField), the message itself.
+  async function focusFirstError() {
+    if (!import.meta.client) return
+    await nextTick()
+    const fields = Object.keys(errors.value)
+      .map(name => document.getElementById(name))
+      .filter((field): field is HTMLElement => field !== null && field.matches('input, select, textarea, button, [tabindex]'))
+      .sort((a, b) => (a.compareDocumentPosition(b) & Node.DOCUMENT_POSITION_FOLLOWING ? -1 : 1))
+    fields[0]?.focus()
+  }
+
   async function submit<R>(values: unknown, send: (data: z.output<S>) => Promise<R>): Promise<R | undefined> {
     errors.value = {}
     message.value = ''
@@ -29,6 +41,7 @@ export function useForm<S extends z.ZodType>(schema: S) {
     if (!parsed.success) {
       errors.value = fieldErrorsFrom(parsed.error)
       message.value = 'Some fields need attention.'
+      await focusFirstError()
       return undefined
     }
     pending.value = true
@@ -39,6 +52,7 @@ export function useForm<S extends z.ZodType>(schema: S) {
       const { fieldErrors, text } = describeFetchError(error)
       errors.value = fieldErrors
       message.value = text
+      await focusFirstError()
       return undefined
     }
     finally {

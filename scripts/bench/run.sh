@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # Benchmarks on loopback against the built server and a scratch database in the test cluster.
-# Usage: bash scripts/bench/run.sh fish-list | timeline | pond-side | pages | photos | archive | which-fish | hostile-uploads | all
+# Usage: bash scripts/bench/run.sh fish-list | timeline | pond-side | pages | photos | archive | which-fish | hostile-uploads | faults | all
 # (npm run bench = all). Each figure is printed beside its comparison; a table of them all closes the run.
 # (FINTRAIL_TEST_PG_PORT moves the database cluster, as for the tests; BENCH_PORT the server.)
 set -euo pipefail
@@ -11,8 +11,8 @@ source "$LIB/postgres.sh"
 source "$LIB/ports.sh"
 cd "$ROOT"
 
-NAME="${1:?name a benchmark: fish-list, timeline, pond-side, pages, photos, archive, which-fish, hostile-uploads or all}"
-BENCHMARKS=(fish-list timeline pond-side pages photos archive which-fish hostile-uploads)
+NAME="${1:?name a benchmark: fish-list, timeline, pond-side, pages, photos, archive, which-fish, hostile-uploads, faults or all}"
+BENCHMARKS=(fish-list timeline pond-side pages photos archive which-fish hostile-uploads faults)
 if [ "$NAME" != all ] && [ ! -f "scripts/bench/$NAME.ts" ]; then
   echo "No benchmark named $NAME (scripts/bench/$NAME.ts); choose one of: ${BENCHMARKS[*]} or all" >&2
   exit 2
@@ -25,6 +25,10 @@ ensure_apt_packages postgresql
 # The photo benchmark compares with ImageMagick; the page benchmark drives Chromium.
 case "$NAME" in photos) ensure_apt_packages imagemagick ;; pages) ensure_apt_packages chromium ;; all) ensure_apt_packages imagemagick chromium ;; esac
 pg_cluster_start test "$PG_PORT" fast
+# The fault benchmark stops and starts this cluster itself.
+BENCH_PG_START="$(pg_start_command_json "$PGDATA_DIR")"
+BENCH_PG_STOP="$(pg_stop_command_json "$PGDATA_DIR")"
+export BENCH_PG_START BENCH_PG_STOP
 export DATABASE_URL="postgres://fintrail@127.0.0.1:$PG_PORT/$DB"
 [ -f .output/server/index.mjs ] || npx nuxt build
 export NUXT_SESSION_PASSWORD="$(random_secret)"

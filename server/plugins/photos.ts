@@ -9,4 +9,13 @@ export default defineNitroPlugin(() => {
       .then(() => runTask('photos:purge'))
       .catch(error => console.error('[photos] start-up maintenance failed:', error))
   }, 0)
+  // With several instances, one killed mid-photo is not restarted to finish it: every instance looks again
+  // now and then. The per-upload advisory lock keeps a photo another instance is still working on out of reach.
+  const everyMs = Number(useRuntimeConfig().photoRecoveryIntervalSeconds) * 1000
+  if (everyMs > 0) {
+    const timer = setInterval(() => {
+      recoverInterruptedPhotos().catch(error => console.error('[photos] recovery failed:', error))
+    }, everyMs)
+    timer.unref()
+  }
 })

@@ -10,6 +10,7 @@ import { PHOTO_ADD_ROLES } from './photo-access'
 import { PhotoRejection } from './photo-files'
 import { finishUpload } from './photo-pipeline'
 import { UPLOAD_ID_PATTERN, uploadsDir } from './photo-storage'
+import { PostgresLocker } from './tus-locker'
 
 /** What a tus hook throws to answer the client: @tus/server sends `status_code` and `body` as they are. */
 export class TusResponse extends Error {
@@ -36,6 +37,7 @@ function toTusResponse(error: unknown): TusResponse | { status_code: number, bod
     console.error('[uploads] storage not writable:', (error as Error).message)
     return new TusResponse(503, `${storageUnavailableMessage(error)}\n`)
   }
+  if (isDatabaseUnavailable(error)) return new TusResponse(503, 'The records cannot be reached just now; the bytes already sent are kept. Try again in a few seconds.\n')
   if (isError(error)) return new TusResponse(error.statusCode, `${error.message || error.statusMessage}\n`)
   const tusError = error as { status_code?: number, body?: string }
   if (typeof tusError?.status_code === 'number' && typeof tusError.body === 'string') return { status_code: tusError.status_code, body: tusError.body }
@@ -69,6 +71,8 @@ export function useTusServer(): Server {
   tus = new Server({
     path: joinURL(config.app.baseURL, '/api/uploads'),
     datastore: store,
+    // Instances share the storage folder: an upload is locked in PostgreSQL, not in one process's memory.
+    locker: new PostgresLocker(),
     relativeLocation: true,
     maxSize: MAX_UPLOAD_BYTES,
     // Not the "*" default: only our own pages may read tus answers from another origin.

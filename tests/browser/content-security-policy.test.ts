@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import type { BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { openBrowser, signIn } from '../support/browser'
+import { openBrowser, scrollThrough, signIn } from '../support/browser'
 import { closeTestDb, testDb } from '../support/db'
 import { MAIN_URL } from '../support/env'
 import { pondWithRoles } from '../support/factories'
@@ -54,6 +54,8 @@ async function watchedPage() {
 async function visit(page: Page, path: string) {
   const response = await page.goto(path, { waitUntil: 'networkidle' })
   expect(response?.status(), path).toBeLessThan(500)
+  // Parts that load when seen (charts, the timeline's later pages) load too.
+  await scrollThrough(page)
   await page.waitForTimeout(300)
 }
 
@@ -165,7 +167,10 @@ describe('the Content-Security-Policy in Chromium', () => {
 
     // The pond's length–weight chart, then "Which fish is this?" with a photo from the phone (a blob: preview).
     await visit(page, `/ponds/${garden}`)
+    // Charts load when scrolled to, as a person would.
+    await scrollThrough(page)
     await page.getByTestId('length-weight-chart').locator('canvas').waitFor()
+    await page.evaluate(() => window.scrollTo(0, 0))
     const photo = join(files, 'at-the-pond.jpg')
     writeFileSync(photo, await makeKoiPhoto(5))
     await page.getByTestId('which-fish-open-panel').click()
@@ -174,7 +179,9 @@ describe('the Content-Security-Policy in Chromium', () => {
 
     // The growth chart, the photo viewer with its large copy, and the uploader with a chosen photo's thumbnail.
     await visit(page, `/fish/${fish}`)
+    await scrollThrough(page)
     await page.locator('[data-testid="growth-chart"] canvas').waitFor()
+    await page.evaluate(() => window.scrollTo(0, 0))
     const tile = page.locator('[data-testid^="photo-"][data-state="ready"]').first()
     await tile.getByRole('button').first().click()
     const viewer = page.getByTestId('photo-viewer')
@@ -218,6 +225,7 @@ describe('the Content-Security-Policy in Chromium', () => {
     await page.locator('[data-testid^="photo-"][data-state="ready"]').first().waitFor({ timeout: 30_000 })
 
     await visit(page, `/ponds/${pond.id}/water`)
+    await scrollThrough(page)
     await page.getByTestId('water-chart-temperatureC').locator('canvas').waitFor()
 
     await visit(page, `/ponds/${pond.id}/visits/${visitId}`)

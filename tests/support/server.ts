@@ -50,7 +50,8 @@ export async function startServer(port: number, extraEnv: Record<string, string 
   child.stderr!.on('data', (d: Buffer) => (output += d.toString()))
   const url = `http://127.0.0.1:${port}`
   const exited = new Promise<void>(done => child.once('exit', () => done()))
-  const deadline = Date.now() + 30_000
+  // Generous: on a machine busy with other builds a start has taken over 30 s.
+  const deadline = Date.now() + 60_000
   for (;;) {
     if (child.exitCode !== null) throw new Error(`server exited early:\n${output}`)
     try {
