@@ -115,6 +115,9 @@ describe('the keyboard alone', () => {
     const photo = join(mkdtempSync(join(tmpdir(), 'keyboard-photo-')), 'from-above.jpg')
     writeFileSync(photo, await makeJpeg({ width: 1200, height: 900 }))
     const page = await browser.newPage()
+    // Listen for the chooser long before it opens: Playwright turns interception on asynchronously, and a listener
+    // added in the same breath as the key press can miss a chooser that opens at once.
+    const chooserOpened = page.waitForEvent('filechooser', { timeout: 90_000 })
     await signIn(page, world.owner.email, world.owner.password)
     await page.goto(`/fish/${fish.id}`, { waitUntil: 'networkidle' })
 
@@ -123,7 +126,8 @@ describe('the keyboard alone', () => {
     await page.locator('.uppy-Dashboard-inner').waitFor()
     // The library button opens the system's file chooser (outside the page); the file is handed to it there.
     await tabTo(page, f => f.text.includes('choose from the library'), 'the library button')
-    const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.keyboard.press('Enter')])
+    await page.keyboard.press('Enter')
+    const chooser = await chooserOpened
     await chooser.setFiles(photo)
     await tabTo(page, f => /Upload 1 photo/.test(f.text), 'the upload button')
     await page.keyboard.press('Enter')
