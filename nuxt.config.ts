@@ -96,6 +96,9 @@ export default defineNuxtConfig({
       for (const chunk of Object.values(manifest)) chunk.prefetch = false
     },
   },
+  // The app reads the signed-in person from /api/me (stores/session.ts), never from the module's
+  // useUserSession: its plugin would add an inner request to /api/_auth/session to every server render.
+  auth: { loadStrategy: 'none' },
   eslint: { config: { stylistic: true } },
   // Security headers only (nuxt-security). Its request guards are off: the app has its own sign-in limiter,
   // same-origin check and text-input check, and a size limiter or XSS filter would refuse tus chunks,
