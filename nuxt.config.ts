@@ -32,6 +32,14 @@ export default defineNuxtConfig({
     appOrigin: '',
     trustProxy: false,
     storageDir: '',
+    // An S3-compatible bucket for photos and uploads (empty: files stay in storageDir). See docs/operations.md.
+    storageS3Bucket: '',
+    storageS3Endpoint: '',
+    storageS3Region: '',
+    storageS3AccessKeyId: '',
+    storageS3SecretAccessKey: '',
+    // 'true' or 'false'; empty: path style whenever an endpoint is set.
+    storageS3ForcePathStyle: '',
     smtpHost: '127.0.0.1',
     smtpPort: 1025,
     mailFrom: 'Fintrail <no-reply@fintrail.local>',
