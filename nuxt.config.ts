@@ -48,6 +48,8 @@ export default defineNuxtConfig({
     mailRetryDelaySeconds: 10,
     // PostgreSQL schema of the job queue (pg-boss), in the app's database.
     jobsSchema: 'pgboss',
+    // On SIGTERM a running job gets this long to finish before it is failed back to the queue for another instance.
+    jobsStopGraceSeconds: 5,
     // First automatic retry of a photo whose files could not be written (doubled each time).
     photoRetryDelaySeconds: 30,
     // How often each instance finishes photos whose instance stopped mid-way (0: only at start).

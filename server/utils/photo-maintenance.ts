@@ -5,6 +5,8 @@ import { deletePhotoFiles, finishUpload, resumePendingPhoto } from './photo-pipe
 import { PHOTO_ID_PATTERN, UPLOAD_ID_PATTERN } from './photo-storage'
 import type { StoredObject } from '../storage/file-storage'
 
+interface UploadInfo { size?: number, metadata?: Record<string, string | null> }
+
 // Work files younger than this may belong to a job running right now (in this or another process).
 const STRAY_AFTER_MS = 60 * 60_000
 
@@ -33,13 +35,13 @@ export async function recoverInterruptedPhotos() {
   const storage = useFileStorage()
   const ids = (await storedUploads()).map(item => item.name).filter(name => UPLOAD_ID_PATTERN.test(name))
   for (const uploadId of ids) {
-    // The tus store's own view: its info (size, metadata) and how many bytes arrived.
-    const upload = await useTusServer().datastore.getUpload(uploadId).catch(() => null)
+    // Both tus stores keep the info as JSON (size, metadata); in a bucket the bytes exist only once the last part arrived.
+    const info = await storage.readBuffer(storage.uploadInfoKey(uploadId)).then(text => JSON.parse(text.toString('utf8')) as UploadInfo, () => null)
     const size = (await storage.stat(storage.uploadKey(uploadId)).catch(() => null))?.size
-    if (!upload?.metadata?.uploaderId || !upload.size || upload.offset !== upload.size || size !== upload.size) continue
+    if (!info?.metadata?.uploaderId || !info.size || size !== info.size) continue
     const [known] = await useDb().select({ id: schema.photos.id }).from(schema.photos).where(eq(schema.photos.uploadId, uploadId)).limit(1)
     if (known) continue
-    await finishUpload(uploadId, { size, metadata: upload.metadata }).then(() => finished++, (error) => {
+    await finishUpload(uploadId, { size, metadata: info.metadata }).then(() => finished++, (error) => {
       if (!(error instanceof PhotoRejection)) console.error('[photos] finishing upload failed:', error)
     })
   }

@@ -63,6 +63,14 @@ async function guard<T>(work: () => Promise<T>): Promise<T> {
 
 let tus: Server | undefined
 
+/** @tus/s3-store 2.0.7 leaves the piece smaller than a part (`<id>.part`) behind when an upload is given up. */
+class UploadBucket extends S3Store {
+  override async remove(id: string) {
+    await super.remove(id)
+    await useFileStorage().remove(`${id}.part`)
+  }
+}
+
 /** Where tus keeps uploads in progress: the bucket (as multipart uploads) or the storage folder. */
 function uploadStore(): DataStore {
   const expirationPeriodInMilliseconds = UPLOAD_EXPIRY_HOURS * 3600_000
@@ -70,7 +78,7 @@ function uploadStore(): DataStore {
   if (s3) {
     // No cache of upload info in this process's memory (its default): another instance may have moved the upload on.
     const noCache = { get: async () => undefined, set: async () => {}, delete: async () => {}, list: async () => [] }
-    return new S3Store({ s3ClientConfig: { bucket: s3.bucket, ...s3ClientConfig(s3) }, expirationPeriodInMilliseconds, partSize: 8 * 1024 * 1024, useTags: false, cache: noCache })
+    return new UploadBucket({ s3ClientConfig: { bucket: s3.bucket, ...s3ClientConfig(s3) }, expirationPeriodInMilliseconds, partSize: 8 * 1024 * 1024, useTags: false, cache: noCache })
   }
   // @tus/file-store creates its folder in a callback that throws, which would end the process: make it here first.
   try {

@@ -67,8 +67,8 @@ export interface FakeS3 {
   stop: () => Promise<void>
 }
 
-export async function startFakeS3(port: number, directory: string, bucket: string): Promise<FakeS3> {
-  const s3 = new S3rver({ port, address: '127.0.0.1', directory, silent: true, allowMismatchedSignatures: true, configureBuckets: [{ name: bucket }] })
+export async function startFakeS3(port: number, directory: string, buckets: string[]): Promise<FakeS3> {
+  const s3 = new S3rver({ port, address: '127.0.0.1', directory, silent: true, allowMismatchedSignatures: true, configureBuckets: buckets.map(name => ({ name })) })
   // After s3rver's logger and XML writer (so our answers are written as XML too), before its routes.
   ;(s3 as unknown as { middleware: unknown[] }).middleware.splice(2, 0, multipartCalls(directory))
   await s3.run()
