@@ -43,7 +43,8 @@ export default defineConfig({
             globalSetup: ['tests/support/global-setup-s3.ts'],
             include: OBJECT_STORAGE_TESTS,
             env: objectStorageEnv(),
-            testTimeout: 30_000,
+            // Every byte crosses HTTP once more (to the fake S3, in this machine's CPU): slower on a busy machine.
+            testTimeout: 90_000,
             hookTimeout: 60_000,
           },
         }]

@@ -272,7 +272,7 @@ describe('at start and every hour', () => {
 
     const server = await startServer(MAIN_PORT + 3)
     try {
-      const deadline = Date.now() + 20_000
+      const deadline = Date.now() + (onS3 ? 60_000 : 20_000)
       for (;;) {
         const { rows } = await testDb().query('select (select count(*)::int from photos where id = $1) as old, (select count(*)::int from photos where upload_id = $2 and state = \'ready\') as arrived, (select state from photos where id = $3) as interrupted', [old.id, arrivedId, interrupted.id])
         if (rows[0].old === 0 && rows[0].arrived === 1 && rows[0].interrupted === 'ready' && !(await storedExists(`photos/originals/${strayId}`))) break
