@@ -1,14 +1,18 @@
+import { readdir, rm, stat } from 'node:fs/promises'
+import { join } from 'node:path'
 import { and, eq, inArray, isNotNull, lt } from 'drizzle-orm'
 import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
 import { PhotoRejection } from './photo-files'
 import { deletePhotoFiles, finishUpload, resumePendingPhoto } from './photo-pipeline'
-import { PHOTO_ID_PATTERN, UPLOAD_ID_PATTERN } from './photo-storage'
+import { PHOTO_ID_PATTERN, UPLOAD_ID_PATTERN, storageRoot } from './photo-storage'
 import type { StoredObject } from '../storage/file-storage'
 
 interface UploadInfo { size?: number, metadata?: Record<string, string | null> }
 
 // Work files younger than this may belong to a job running right now (in this or another process).
 const STRAY_AFTER_MS = 60 * 60_000
+// A received spreadsheet or pond archive (server/utils/spreadsheets.ts, api/ponds/import.post.ts) waiting to be read.
+const RECEIVED_UPLOAD = /^(sheet-[0-9a-f-]{36}|import-[0-9a-f-]{36}\.zip)$/
 
 async function listAll(prefix: string) {
   const found: StoredObject[] = []
@@ -102,6 +106,14 @@ async function sweepStrayFiles() {
     if ((isWork || !PHOTO_ID_PATTERN.test(id)) && now - group.newest < STRAY_AFTER_MS) continue
     if (place.startsWith('photos/derived/')) await storage.removePrefix(`${place}/`)
     else await storage.remove(place)
+    swept++
+  }
+  // A request removes the file it received when it ends; one left in this instance's scratch folder was cut off by a stop.
+  const received = join(storageRoot(), 'tmp')
+  for (const name of await readdir(received).catch(() => [] as string[])) {
+    const modified = (await stat(join(received, name)).catch(() => null))?.mtimeMs ?? now
+    if (!RECEIVED_UPLOAD.test(name) || now - modified < STRAY_AFTER_MS) continue
+    await rm(join(received, name), { force: true })
     swept++
   }
   // An upload's bytes without its info (or, in a folder, the reverse) cannot be resumed by anyone. In a bucket an
