@@ -32,6 +32,14 @@ export default defineNuxtConfig({
     appOrigin: '',
     trustProxy: false,
     storageDir: '',
+    // An S3-compatible bucket for photos and uploads (empty: files stay in storageDir). See docs/operations.md.
+    storageS3Bucket: '',
+    storageS3Endpoint: '',
+    storageS3Region: '',
+    storageS3AccessKeyId: '',
+    storageS3SecretAccessKey: '',
+    // 'true' or 'false'; empty: path style whenever an endpoint is set.
+    storageS3ForcePathStyle: '',
     smtpHost: '127.0.0.1',
     smtpPort: 1025,
     mailFrom: 'Fintrail <no-reply@fintrail.local>',
@@ -40,6 +48,8 @@ export default defineNuxtConfig({
     mailRetryDelaySeconds: 10,
     // PostgreSQL schema of the job queue (pg-boss), in the app's database.
     jobsSchema: 'pgboss',
+    // On SIGTERM a running job gets this long to finish before it is failed back to the queue for another instance.
+    jobsStopGraceSeconds: 5,
     // First automatic retry of a photo whose files could not be written (doubled each time).
     photoRetryDelaySeconds: 30,
     // How often each instance finishes photos whose instance stopped mid-way (0: only at start).
