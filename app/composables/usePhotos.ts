@@ -2,7 +2,7 @@ import type { FishPhotos, PhotoItem } from '#shared/types'
 import { formatDay, formatEntryDate } from '~/utils/timeline-labels'
 
 export function useFishPhotos(fishId: MaybeRefOrGetter<string>) {
-  return useFetch<FishPhotos>(() => `/api/fish/${toValue(fishId)}/photos`, { key: `fish-photos-${toValue(fishId)}` })
+  return useSavedFetch<FishPhotos>(() => `/api/fish/${toValue(fishId)}/photos`, { key: `fish-photos-${toValue(fishId)}` })
 }
 
 /** The served sizes of a photo: WebP with a JPEG fallback, 320, 1024 and 2048 px on the long side. */

@@ -1,19 +1,19 @@
 import type { FishListItem, FishProfile, FishEditRecord, PondDetail, PondSummary } from '#shared/types'
 
 export function usePonds() {
-  return useFetch<PondSummary[]>('/api/ponds', { key: 'ponds' })
+  return useSavedFetch<PondSummary[]>(() => '/api/ponds', { key: 'ponds' })
 }
 
 export function usePond(pondId: MaybeRefOrGetter<string>) {
-  return useFetch<PondDetail>(() => `/api/ponds/${toValue(pondId)}`, { key: `pond-${toValue(pondId)}` })
+  return useSavedFetch<PondDetail>(() => `/api/ponds/${toValue(pondId)}`, { key: `pond-${toValue(pondId)}` })
 }
 
 export function usePondFish(pondId: MaybeRefOrGetter<string>) {
-  return useFetch<FishListItem[]>(() => `/api/ponds/${toValue(pondId)}/fish`, { key: `pond-fish-${toValue(pondId)}` })
+  return useSavedFetch<FishListItem[]>(() => `/api/ponds/${toValue(pondId)}/fish`, { key: `pond-fish-${toValue(pondId)}` })
 }
 
 export function useFish(fishId: MaybeRefOrGetter<string>) {
-  return useFetch<FishProfile>(() => `/api/fish/${toValue(fishId)}`, { key: `fish-${toValue(fishId)}` })
+  return useSavedFetch<FishProfile>(() => `/api/fish/${toValue(fishId)}`, { key: `fish-${toValue(fishId)}` })
 }
 
 export function useFishHistory(fishId: MaybeRefOrGetter<string>) {

@@ -2,7 +2,7 @@ import type { FishGrowth, PondLengthWeight, StandingFacts, TimelineEntryView, Ti
 import type { TimelineKind } from '#shared/utils/timeline-schemas'
 
 export function useFishFacts(fishId: MaybeRefOrGetter<string>) {
-  return useFetch<StandingFacts>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
+  return useSavedFetch<StandingFacts>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
 }
 
 /** The chart's sample of a long series by default; `every` (the printed record, "show every measurement") asks for all. */
@@ -33,7 +33,7 @@ export function useTimeline(fishId: MaybeRefOrGetter<string>) {
   const olderCursor = ref<string | null | undefined>(undefined)
   const loadingMore = ref(false)
   const moreError = ref('')
-  const first = useFetch<TimelinePage>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+  const first = useSavedFetch<TimelinePage>(() => `/api/fish/${toValue(fishId)}/timeline`, {
     key: `fish-timeline-${toValue(fishId)}`,
     query: computed(() => (kinds.value.length ? { kind: kinds.value.join(',') } : {})),
   })
@@ -70,7 +70,7 @@ export interface PondVet { userId: string, name: string }
 
 /** The pond's vets, for "performed by" and "on the instruction of": chosen, so the record can trace them. */
 export function usePondVets(pondId: MaybeRefOrGetter<string>) {
-  const members = useFetch<{ userId: string, name: string, role: string, readOnly: boolean }[]>(() => `/api/ponds/${toValue(pondId)}/members`, {
+  const members = useSavedFetch<{ userId: string, name: string, role: string, readOnly: boolean }[]>(() => `/api/ponds/${toValue(pondId)}/members`, {
     key: `pond-members-${toValue(pondId)}`,
   })
   const vets = computed<PondVet[]>(() => (members.data.value ?? []).filter(m => m.role === 'vet' && !m.readOnly).map(m => ({ userId: m.userId, name: m.name })))

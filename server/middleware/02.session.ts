@@ -5,6 +5,8 @@ const TOUCH_AFTER_MS = 60_000
 
 export default defineEventHandler(async (event) => {
   if (event.path.startsWith('/_nuxt/') || event.path.startsWith('/__nuxt') || event.path === '/api/health') return
+  // The page shell the service worker keeps for anyone: no session is read, so no cookie is set on it.
+  if (event.path === '/offline-shell') return
   const session = await getUserSession(event)
   if (!session.sessionId) return
   const config = useRuntimeConfig(event)
