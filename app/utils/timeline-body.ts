@@ -16,5 +16,8 @@ export interface EntryBodyContext {
   refreshKeys?: string[]
 }
 
+/** An entry as its body needs it: kind and fields always; id, the other fish and derived facts when shown live. */
+export type EntryShown = Pick<TimelineEntryView, 'kind' | 'data'> & Partial<Pick<TimelineEntryView, 'id' | 'otherFish' | 'viewpoint' | 'derived'>>
+
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export type EntryBodyData = Record<string, any>

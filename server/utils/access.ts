@@ -87,32 +87,31 @@ export interface EntryAccess extends FishAccess {
   entry: typeof schema.timelineEntries.$inferSelect
 }
 
-/** An entry is reached through its fish: only members of the pond the fish lives in see it (404 otherwise). */
-export async function requireEntryAccess(event: H3Event, entryId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<EntryAccess> {
-  const user = requireUser(event)
-  const [row] = await useDb().select({ entry: schema.timelineEntries, fish: schema.fish, ...membershipColumns })
-    .from(schema.timelineEntries)
-    .innerJoin(schema.fish, eq(schema.fish.id, schema.timelineEntries.fishId))
-    .innerJoin(schema.memberships, membershipOfFishPond(user.id))
-    .where(eq(schema.timelineEntries.id, entryId))
-    .limit(1)
-  const { entry, fish, role, readOnly } = decide(event, row, 'Entry', roles)
-  return { user, role, readOnly, fish, entry }
-}
-
 export interface PhotoAccess extends FishAccess {
   photo: typeof schema.photos.$inferSelect
 }
 
+/** A row that belongs to one fish (a timeline entry, a photo): reached only through that fish's pond membership. */
+async function requireFishChild(event: H3Event, table: typeof schema.timelineEntries | typeof schema.photos, id: string, what: string, roles: readonly PondRole[]) {
+  const user = requireUser(event)
+  const [row] = await useDb().select({ child: table, fish: schema.fish, ...membershipColumns })
+    .from(table)
+    .innerJoin(schema.fish, eq(schema.fish.id, table.fishId))
+    .innerJoin(schema.memberships, membershipOfFishPond(user.id))
+    .where(eq(table.id, id))
+    .limit(1)
+  const { child, fish, role, readOnly } = decide(event, row, what, roles)
+  return { user, role, readOnly, fish, child }
+}
+
+/** An entry is reached through its fish: only members of the pond the fish lives in see it (404 otherwise). */
+export async function requireEntryAccess(event: H3Event, entryId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<EntryAccess> {
+  const { child, ...access } = await requireFishChild(event, schema.timelineEntries, entryId, 'Entry', roles)
+  return { ...access, entry: child as EntryAccess['entry'] }
+}
+
 /** A photo exists for the caller only through a membership of its fish's pond: anyone else gets 404. */
 export async function requirePhotoAccess(event: H3Event, photoId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<PhotoAccess> {
-  const user = requireUser(event)
-  const [row] = await useDb().select({ photo: schema.photos, fish: schema.fish, ...membershipColumns })
-    .from(schema.photos)
-    .innerJoin(schema.fish, eq(schema.fish.id, schema.photos.fishId))
-    .innerJoin(schema.memberships, membershipOfFishPond(user.id))
-    .where(eq(schema.photos.id, photoId))
-    .limit(1)
-  const { photo, fish, role, readOnly } = decide(event, row, 'Photo', roles)
-  return { user, role, readOnly, fish, photo }
+  const { child, ...access } = await requireFishChild(event, schema.photos, photoId, 'Photo', roles)
+  return { ...access, photo: child as PhotoAccess['photo'] }
 }

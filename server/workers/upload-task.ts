@@ -4,7 +4,7 @@ import type { Spreadsheet } from './spreadsheet-read'
 import type { UploadProblem } from './zip-reader'
 
 export type UploadTask
-  = | { kind: 'spreadsheet', name: string, data: Uint8Array, sheet?: string, sampleRows?: number }
+  = | { kind: 'spreadsheet', name: string, path: string, sheet?: string, sampleRows?: number }
     | { kind: 'archive', path: string }
 
 export type UploadTaskResult

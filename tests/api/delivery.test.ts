@@ -3,6 +3,7 @@
 import { existsSync, readdirSync, readFileSync } from 'node:fs'
 import { request } from 'node:http'
 import { resolve } from 'node:path'
+import { brotliDecompressSync, gunzipSync } from 'node:zlib'
 import { describe, expect, it } from 'vitest'
 import { MAIN_URL, ROOT } from '../support/env'
 import { createFish, createPond, signedInUser } from '../support/factories'
@@ -27,6 +28,15 @@ function rawGet(path: string, acceptEncoding: string | null, cookie = ''): Promi
   })
 }
 
+/** The body as the browser reads it, whatever the Content-Encoding. */
+function decoded(answer: { headers: Record<string, string | string[] | undefined>, bytes: Buffer }) {
+  const encoding = answer.headers['content-encoding']
+  if (encoding === 'br') return brotliDecompressSync(answer.bytes).toString('utf8')
+  if (encoding === 'gzip') return gunzipSync(answer.bytes).toString('utf8')
+  expect(encoding).toBeUndefined()
+  return answer.bytes.toString('utf8')
+}
+
 /** The built client's entry script, from the manifest the server renders with. */
 async function entryScript(): Promise<string> {
   const manifest = (await import(MANIFEST)).default as { entrypoints: string[], modules: Record<string, { file: string }> }
@@ -45,15 +55,43 @@ describe('delivery', () => {
     const { client } = await signedInUser()
     const pond = await createPond(client)
     for (let i = 0; i < 12; i++) await createFish(client, pond.id)
-    // A page that is not there must reach the browser whole whatever encodings it accepts.
-    const missing = await rawGet('/fish/00000000-0000-4000-8000-000000000000', 'gzip, deflate, br', client.cookieHeader())
-    expect(missing.status).toBe(404)
-    expect(missing.bytes.length).toBeGreaterThan(500)
-    expect(missing.headers['content-encoding']).toBeUndefined()
+    // A page that is not there must reach the browser whole whatever encodings it accepts: Nuxt renders it with
+    // an inner request that must not be compressed on its own (server/middleware/00.compression.ts).
+    for (const accepts of ['gzip, deflate, br', 'gzip', null]) {
+      const missing = await rawGet('/fish/00000000-0000-4000-8000-000000000000', accepts, client.cookieHeader())
+      expect(missing.status).toBe(404)
+      expect(missing.headers['content-encoding']).toBe(accepts ? accepts.includes('br') ? 'br' : 'gzip' : undefined)
+      const html = decoded(missing)
+      expect(html.length).toBeGreaterThan(500)
+      expect(html).toMatch(/^<!DOCTYPE html>/i)
+      expect(html).toContain('</html>')
+    }
     const list = await rawGet(`/api/ponds/${pond.id}/fish`, 'br', client.cookieHeader())
     expect(list.status).toBe(200)
     expect(list.headers['content-encoding']).toBe('br')
     expect((await rawGet('/api/health', 'br')).headers['content-encoding']).toBeUndefined()
+  })
+
+  it('compresses a signed-in page and the browser decodes the whole page from it', async () => {
+    const { client } = await signedInUser()
+    const pond = await createPond(client)
+    const fish = await createFish(client, pond.id)
+    const plain = await rawGet(`/fish/${fish.id}`, null, client.cookieHeader())
+    expect(plain.status).toBe(200)
+    expect(plain.headers['content-encoding']).toBeUndefined()
+    for (const [accepts, encoding] of [['gzip, deflate, br', 'br'], ['gzip, deflate', 'gzip']] as const) {
+      const page = await rawGet(`/fish/${fish.id}`, accepts, client.cookieHeader())
+      expect(page.status).toBe(200)
+      expect(page.headers['content-encoding']).toBe(encoding)
+      expect(page.headers.vary).toMatch(/accept-encoding/i)
+      expect(page.bytes.length).toBeLessThan(plain.bytes.length)
+      const html = decoded(page)
+      expect(html).toContain('</html>')
+      expect(html).toContain(fish.name)
+      // The same page as sent uncompressed, apart from what differs per request (CSP nonce, request ids).
+      expect(html.length).toBeGreaterThan(plain.bytes.length * 0.95)
+      expect(html.length).toBeLessThan(plain.bytes.length * 1.05)
+    }
   })
 
   it('serves the built JavaScript precompressed (brotli and gzip files beside each asset)', async () => {

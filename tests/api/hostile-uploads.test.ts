@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { closeTestDb, testDb } from '../support/db'
 import { MAIN_URL } from '../support/env'
 import { createFish, createPond, signedInUser } from '../support/factories'
-import { archiveWithPaddedManifest, largeWorkbook, smallWorkbook, withHiddenEntry, withLocalSize } from '../support/hostile-files'
+import { archiveWithPaddedManifest, largeCsv, largeWorkbook, smallWorkbook, withHiddenEntry, withLocalSize } from '../support/hostile-files'
 import { uploadSheet } from '../support/spreadsheets'
 import { declareSize, writeZip } from '../support/zip'
 
@@ -73,6 +73,41 @@ describe('spreadsheet uploads', () => {
     expect(response.body.rowCount).toBe(30_000)
     // Parsed on the event loop, every health request would wait for the parse to end.
     expect(answeredDuring).toBeGreaterThanOrEqual(3)
+  }, 120_000)
+})
+
+describe('a CSV over the row cap', () => {
+  const mapping = { fishColumn: 'Fish', fishMatch: 'name', dateColumn: 'Date', dateFormat: 'YYYY-MM-DD', weightColumn: 'Weight', weightUnit: 'g' }
+  const imports = async () => (await testDb().query('select count(*)::int as n from measurement_imports where pond_id = $1', [pondId])).rows[0].n
+
+  it('refuses 200,000 rows with a 413 naming the cap, writes nothing, and /api/health answers meanwhile', async () => {
+    const csv = largeCsv(200_000)
+    const before = await imports()
+    let answeredDuring = 0
+    let done = false
+    const upload = uploadSheet(owner.client, `/api/ponds/${pondId}/measurement-imports`, { name: 'weigh-ins.csv', data: csv }, { mapping }).finally(() => (done = true))
+    await new Promise(resolve => setTimeout(resolve, 100))
+    while (!done) {
+      if ((await healthy()) === 200 && !done) answeredDuring++
+      await new Promise(resolve => setTimeout(resolve, 20))
+    }
+    const response = await upload
+    expect(response.status, JSON.stringify(response.body).slice(0, 500)).toBe(413)
+    expect(response.body.message).toBe('The sheet has more than 100000 rows; at most 100000 are read at once. Split it into several files.')
+    expect(response.body.data.fieldErrors.file).toEqual([response.body.message])
+    expect(await imports()).toBe(before)
+    // A liveness check only: how fast it answers is the benchmark's business (scripts/bench/hostile-uploads.ts).
+    expect(answeredDuring).toBeGreaterThanOrEqual(1)
+  }, 120_000)
+
+  it('reads a CSV of exactly 100,000 rows, and refuses one more', async () => {
+    const atCap = await columns('cap.csv', largeCsv(100_000), 'text/csv')
+    expect(atCap.status, JSON.stringify(atCap.body).slice(0, 500)).toBe(200)
+    expect(atCap.body).toMatchObject({ format: 'csv', columns: ['Fish', 'Date', 'Weight'], rowCount: 100_000 })
+    expect(atCap.body.sample).toHaveLength(8)
+    const overCap = await columns('over.csv', largeCsv(100_001), 'text/csv')
+    expect(overCap.status).toBe(413)
+    expect(overCap.body.message).toMatch(/more than 100000 rows/)
   }, 120_000)
 })
 

@@ -1,23 +1,13 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
 import { signedInUser } from '../support/factories'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 describe('the account page in Chromium', () => {
   it('shows which units and decimal mark are chosen, and keeps a change', async () => {
     const person = await signedInUser({ name: 'Nell Ashby' })
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, person.email, person.password)
     await page.goto('/account', { waitUntil: 'networkidle' })
     await expect.poll(() => page.getByTestId('units-metric').getAttribute('aria-pressed')).toBe('true')

@@ -1,25 +1,15 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
 import { MAIN_URL } from '../support/env'
 import { addMember, createFish, createPond, signedInUser } from '../support/factories'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 describe('a pond archive seen by the people who use it', () => {
   it('offers to keep photo locations only when ticked, with the reason beside it', async () => {
     const owner = await signedInUser({ name: 'Archive Screen Owner' })
     const pond = await createPond(owner.client, { name: 'Pond to download' })
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/ponds/${pond.id}/settings`, { waitUntil: 'networkidle' })
     const keep = page.getByTestId('export-keep-location')
@@ -48,7 +38,7 @@ describe('a pond archive seen by the people who use it', () => {
     const { pondId } = await imported.json() as { pondId: string }
     const [copy] = (await importer.client.get(`/api/ponds/${pondId}/fish`)).body
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, importer.email, importer.password)
     await page.goto(`/fish/${copy.id}`, { waitUntil: 'networkidle' })
     const line = page.getByTestId('entry-exam').getByTestId('imported-author')

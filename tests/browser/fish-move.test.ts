@@ -1,18 +1,9 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb, testDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import { testDb } from '../support/db'
 import { addMember, createFish, createPond, signedInUser } from '../support/factories'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 describe('moving a fish between two of the owner’s ponds', () => {
   it('asks first, naming the members of the old pond who are not in the new one, and moves only when confirmed', async () => {
@@ -26,7 +17,7 @@ describe('moving a fish between two of the owner’s ponds', () => {
     await addMember(to.id, sharedVet.user.id, 'vet')
     const fish = await createFish(owner.client, from.id, { name: 'Pebble' })
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`, { waitUntil: 'networkidle' })
     await page.getByText('Move or rehome Pebble').click()

@@ -1,19 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots } from '../support/browser'
-import { closeTestDb, testDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots } from '../support/browser'
+import { testDb } from '../support/db'
 import { createFish, createPond, signedInUser } from '../support/factories'
 import { tokenFromMail } from '../support/custody'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 describe('taking in a fish offered by mail, in Chromium', () => {
   it('the new keeper opens the link, chooses one of their ponds and the fish moves there', async () => {
@@ -27,7 +18,7 @@ describe('taking in a fish offered by mail, in Chromium', () => {
     expect(offered.status, JSON.stringify(offered.body)).toBe(201)
     const token = await tokenFromMail(adopter.email, 'offers you the fish', '/transfers/', since)
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await page.context().clearCookies()
     await page.goto(`/transfers/${token}`, { waitUntil: 'networkidle' })
     // Signed out: the page says what is offered and leads to sign-in, coming back here afterwards.
@@ -54,7 +45,7 @@ describe('taking in a fish offered by mail, in Chromium', () => {
   })
 
   it('says so when the link is not valid', async () => {
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await page.goto('/transfers/not-a-real-token', { waitUntil: 'networkidle' })
     await expect.poll(() => page.getByText('This link is not valid. Ask the owner to send a new one.').isVisible()).toBe(true)
     await page.close()

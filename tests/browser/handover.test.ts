@@ -1,20 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
 import { linkIn, waitForMail } from '../support/mail'
 import { addMember, createFish, createPond, signedInUser, TEST_PASSWORD, uniqueEmail } from '../support/factories'
 import { membershipOf } from '../support/custody'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 describe('handing a pond over in Chromium', () => {
   it('the owner offers the pond; the new owner signs up through the mailed link and accepts it', async () => {
@@ -25,7 +15,7 @@ describe('handing a pond over in Chromium', () => {
     const fish = await createFish(owner.client, pond.id, { name: 'Lantern' })
     const heirEmail = uniqueEmail('heir')
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/ponds/${pond.id}/settings`, { waitUntil: 'networkidle' })
     await page.getByTestId('handover-card').waitFor()

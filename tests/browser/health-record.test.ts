@@ -2,22 +2,14 @@ import { execFileSync } from 'node:child_process'
 import { mkdtempSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb, testDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import { testDb } from '../support/db'
 import { pondWithRoles, testMicrochip } from '../support/factories'
 import { addEntry } from '../support/timeline'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 /** Prints the page as Chromium does for "Save as PDF" and returns the PDF's text in reading order (poppler's pdftotext). */
 async function printedText(page: Page) {
@@ -51,9 +43,9 @@ describe('printable health record', () => {
     await addEntry(world.vet.client, fish.id, { kind: 'procedure', occurredAt: '2026-05-02', data: { code: 'enucleation', name: 'enucleation', bodySite: 'eye', side: 'left', performedBy: 'Dr Test Vet', outcome: 'Recovered well', anaesthesiaEntryId: anaesthesia.entry.id } })
     await addEntry(world.vet.client, fish.id, { kind: 'procedure', occurredAt: '2026-06-10', data: { code: 'mass_removal', name: 'mass removal', bodySite: 'dorsal fin base', side: 'right', performedBy: 'Dr Test Vet', outcome: 'Margins clear' } })
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, world.owner.email, world.owner.password)
-    await page.goto(`/fish/${fish.id}`)
+    await page.goto(`/fish/${fish.id}`, { waitUntil: 'networkidle' })
     await page.getByTestId('health-record-link').click()
     await expect.poll(() => page.getByTestId('record-completeness').getAttribute('data-complete'), { timeout: 60_000 }).toBe('true')
     await screenshots(page, 'health-record')
@@ -108,7 +100,7 @@ describe('printable health record', () => {
     // The oldest entry of all, dated before the generated ones: the print must reach back to it.
     await addEntry(world.keeper.client, fish.id, { kind: 'observation', occurredAt: '2006-01-01', data: { signs: [], text: 'First day in the pond: bought as a tosai at the spring auction' } })
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, world.owner.email, world.owner.password)
     await page.goto(`/fish/${fish.id}/record`, { timeout: 60_000 })
     const completeness = page.getByTestId('record-completeness')

@@ -82,7 +82,8 @@ describe('the keyboard alone', () => {
     expect((await focused(page)).inDialog).toBe(true)
     await page.keyboard.press('Escape')
     await page.getByTestId('entry-form').waitFor({ state: 'detached' })
-    expect((await focused(page)).testid).toBe('add-measurement')
+    // Focus comes back once the form has gone, a moment after it leaves the page.
+    await expect.poll(async () => (await focused(page)).testid).toBe('add-measurement')
 
     // Open again: Tab and Shift+Tab go round inside the dialog, never to the page behind it.
     await page.keyboard.press('Enter')
@@ -103,7 +104,7 @@ describe('the keyboard alone', () => {
     // Enter in a field sends the form, as in any web form.
     await page.keyboard.press('Enter')
     await page.getByTestId('entry-form').waitFor({ state: 'detached' })
-    expect((await focused(page)).testid).toBe('add-measurement')
+    await expect.poll(async () => (await focused(page)).testid).toBe('add-measurement')
     await expect.poll(async () => (await entriesOfKind(fish.id, 'measurement')).map(e => e.data.weightG)).toEqual([1250])
     await page.getByTestId('entry-measurement').first().waitFor()
     await page.close()
@@ -115,6 +116,11 @@ describe('the keyboard alone', () => {
     const photo = join(mkdtempSync(join(tmpdir(), 'keyboard-photo-')), 'from-above.jpg')
     writeFileSync(photo, await makeJpeg({ width: 1200, height: 900 }))
     const page = await browser.newPage()
+    // Listen for the chooser long before it opens: Playwright turns interception on asynchronously, and a listener
+    // added in the same breath as the key press can miss a chooser that opens at once.
+    const chooserOpened = page.waitForEvent('filechooser', { timeout: 90_000 })
+    // Awaited below; if the test fails before that, the closing page must not surface as a second, unhandled error.
+    chooserOpened.catch(() => undefined)
     await signIn(page, world.owner.email, world.owner.password)
     await page.goto(`/fish/${fish.id}`, { waitUntil: 'networkidle' })
 
@@ -123,7 +129,8 @@ describe('the keyboard alone', () => {
     await page.locator('.uppy-Dashboard-inner').waitFor()
     // The library button opens the system's file chooser (outside the page); the file is handed to it there.
     await tabTo(page, f => f.text.includes('choose from the library'), 'the library button')
-    const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.keyboard.press('Enter')])
+    await page.keyboard.press('Enter')
+    const chooser = await chooserOpened
     await chooser.setFiles(photo)
     await tabTo(page, f => /Upload 1 photo/.test(f.text), 'the upload button')
     await page.keyboard.press('Enter')
@@ -136,7 +143,7 @@ describe('the keyboard alone', () => {
     expect(await page.evaluate(() => Boolean(document.activeElement?.closest('dialog[open]')))).toBe(true)
     await page.keyboard.press('Escape')
     await page.getByTestId('photo-large').waitFor({ state: 'detached' })
-    expect((await focused(page)).label).toBe(opener.label)
+    await expect.poll(async () => (await focused(page)).label).toBe(opener.label)
     await page.close()
   })
 

@@ -1,21 +1,12 @@
 import { writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb, testDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import { testDb } from '../support/db'
 import { createFish, pondWithRoles } from '../support/factories'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 describe('importing a spreadsheet of weights in Chromium', () => {
   it('a keeper maps the columns, sees the rows that cannot be read, and imports the rest', async () => {
@@ -24,7 +15,7 @@ describe('importing a spreadsheet of weights in Chromium', () => {
     const file = join(tmpdir(), `weigh-ins-${Date.now()}.csv`)
     writeFileSync(file, 'Koi,Date,Weight (kg),Length (cm)\nTsuki,2024-05-01,1.2,40\nTsuki,2024-06-01,1.25,41\nGhost,2024-06-01,1.3,42\n')
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, keeper.email, keeper.password)
     await page.goto(`/ponds/${pond.id}/settings`, { waitUntil: 'networkidle' })
     await page.getByTestId('import-link').click()

@@ -1,19 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb, testDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import { testDb } from '../support/db'
 import { createFish, createPond, signedInUser } from '../support/factories'
 import { daysAgo } from '../support/timeline'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 async function weightsOf(fishId: string) {
   const { rows } = await testDb().query(`select data from timeline_entries where fish_id = $1 and kind = 'measurement' order by occurred_at`, [fishId])
@@ -27,9 +18,9 @@ describe('typed numbers in Chromium', () => {
     const pond = await createPond(person.client)
     const fish = await createFish(person.client, pond.id, { name: 'Comma test' })
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, person.email, person.password)
-    await page.goto(`/fish/${fish.id}`)
+    await page.goto(`/fish/${fish.id}`, { waitUntil: 'networkidle' })
     await page.getByTestId('add-measurement').click()
     const form = page.getByTestId('entry-form')
     const weight = form.getByLabel('Weight', { exact: true })
@@ -67,9 +58,9 @@ describe('typed numbers in Chromium', () => {
     const first = await person.client.post(`/api/fish/${fish.id}/timeline`, { kind: 'measurement', occurredAt: daysAgo(7), data: { weightG: 1000 } })
     expect(first.status).toBe(201)
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, person.email, person.password)
-    await page.goto(`/fish/${fish.id}`)
+    await page.goto(`/fish/${fish.id}`, { waitUntil: 'networkidle' })
     await page.getByTestId('add-measurement').click()
     const form = page.getByTestId('entry-form')
     // 2.5 kg a week after 1 kg: +150 %, over the 30 % in 30 days (common practice).

@@ -1,38 +1,21 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { ApiClient } from '../support/client'
-import { closeTestDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import type { ApiClient } from '../support/client'
+import { DEMO, DEMO_PASSWORD, demoClient, demoPond } from '../support/demo'
 
-const DEMO_PASSWORD = 'pondside-demo-2026'
-const VET = 'ada.okafor@example.com'
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 const day = (offset: number) => new Date(Date.now() + offset * 86_400_000).toISOString().slice(0, 10)
 
-async function vetApi() {
-  const client = new ApiClient()
-  expect((await client.post('/api/auth/sign-in', { email: VET, password: DEMO_PASSWORD })).status).toBe(200)
-  return client
-}
-
 async function pondNamed(client: ApiClient, name: string) {
-  const pond = ((await client.get('/api/ponds')).body as { id: string, name: string }[]).find(p => p.name === name)!
+  const pond = await demoPond(client, name)
   const fish = (await client.get(`/api/ponds/${pond.id}/fish`)).body as { id: string, name: string }[]
   return { pond, fish }
 }
 
 describe('the vet’s worklist, visits and whole-pond events in Chromium', () => {
   it('opens a pond from the worklist, records salt for the whole pond, and shows a visit summary to print', async () => {
-    const api = await vetApi()
+    const api = await demoClient(DEMO.vet)
     const whitlock = await pondNamed(api, 'Whitlock koi pond')
     const ghost = whitlock.fish.find(f => f.name === 'Ghost')!
     const recheck = await api.post(`/api/fish/${ghost.id}/timeline`, {
@@ -40,8 +23,8 @@ describe('the vet’s worklist, visits and whole-pond events in Chromium', () =>
     })
     expect(recheck.status, JSON.stringify(recheck.body)).toBe(201)
 
-    const page = await browser.newPage()
-    await signIn(page, VET, DEMO_PASSWORD)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.vet, DEMO_PASSWORD)
     await page.getByTestId('open-due').click()
     await page.waitForURL('**/due')
     const items = page.getByTestId('due-item')
@@ -77,14 +60,14 @@ describe('the vet’s worklist, visits and whole-pond events in Chromium', () =>
     expect(opened.status, JSON.stringify(opened.body)).toBe(201)
     expect((await api.post(`/api/fish/${ghost.id}/timeline`, { kind: 'exam', occurredAt: new Date().toISOString(), data: { reason: 'Recheck of the flank wound', assessment: 'Granulating well' } })).status).toBe(201)
     expect((await api.post(`/api/ponds/${whitlock.pond.id}/visits/${opened.body.visit.id}/close`, { findings: 'Flank wound healing; no new lesions.' })).status).toBe(200)
-    await page.goto(`/ponds/${whitlock.pond.id}/visits/${opened.body.visit.id}`)
+    await page.goto(`/ponds/${whitlock.pond.id}/visits/${opened.body.visit.id}`, { waitUntil: 'networkidle' })
     await page.getByTestId('visit-summary').waitFor()
     await expect(page.getByTestId('visit-fish-seen').innerText()).resolves.toBe('Ghost')
     await expect(page.getByTestId('visit-entry').first().innerText()).resolves.toContain('Granulating well')
     await screenshots(page, 'visit-summary')
 
     // Ghost's own timeline carries the salt, from the pond.
-    await page.goto(`/fish/${ghost.id}`)
+    await page.goto(`/fish/${ghost.id}`, { waitUntil: 'networkidle' })
     await page.getByTestId('entry-pond_event').first().waitFor()
     await screenshots(page, 'fish-timeline-pond-event')
     await page.close()

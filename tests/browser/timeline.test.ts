@@ -1,33 +1,14 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext, Page } from 'playwright-core'
-import { openBrowser, screenshots, scrollThrough, signIn } from '../support/browser'
-import { ApiClient } from '../support/client'
-import { closeTestDb, testDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import type { Page } from 'playwright-core'
+import { browserForFile, screenshots, scrollThrough, signIn } from '../support/browser'
+import type { ApiClient } from '../support/client'
+import { testDb } from '../support/db'
+import { DEMO, DEMO_PASSWORD, demoClient, demoPond } from '../support/demo'
 
-const DEMO_PASSWORD = 'pondside-demo-2026'
-const VET = 'ada.okafor@example.com'
-const KEEPER = 'priya.anand@example.com'
-const US_KEEPER = 'tom.marlow@example.com'
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
-
-async function apiAs(email: string) {
-  const client = new ApiClient()
-  const response = await client.post('/api/auth/sign-in', { email, password: DEMO_PASSWORD })
-  expect(response.status).toBe(200)
-  return client
-}
+const chromium = browserForFile()
 
 async function demoFish(client: ApiClient, pondName: string, fishName: string) {
-  const ponds = (await client.get('/api/ponds')).body as { id: string, name: string }[]
-  const pond = ponds.find(p => p.name === pondName)!
+  const pond = await demoPond(client, pondName)
   const fish = (await client.get(`/api/ponds/${pond.id}/fish`)).body as { id: string, name: string }[]
   return { pondId: pond.id, fishId: fish.find(f => f.name === fishName)!.id }
 }
@@ -42,7 +23,7 @@ function fetchInPage(page: Page, url: string, body: unknown) {
 
 describe('the life record in Chromium', () => {
   it('lets the vet record an enucleation with its anaesthesia and shows it in the header', async () => {
-    const api = await apiAs(VET)
+    const api = await demoClient(DEMO.vet)
     // A demo fish whose left eye is still there (each run on the same database uses the next one).
     let chosen: { pondId: string, fishId: string, name: string } | undefined
     for (const [pond, name] of [['Whitlock koi pond', 'Ghost'], ['Whitlock koi pond', 'Rusty'], ['Whitlock koi pond', 'Duchess'], ['Garden pond', 'Marble'], ['Garden pond', 'Tancho'], ['Garden pond', 'Juniper']] as const) {
@@ -54,9 +35,9 @@ describe('the life record in Chromium', () => {
     }
     expect(chosen, 'a demo fish with a left eye').toBeDefined()
 
-    const page = await browser.newPage()
-    await signIn(page, VET, DEMO_PASSWORD)
-    await page.goto(`/fish/${chosen!.fishId}`)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.vet, DEMO_PASSWORD)
+    await page.goto(`/fish/${chosen!.fishId}`, { waitUntil: 'networkidle' })
     await page.getByTestId('standing-facts').waitFor()
     expect(await page.getByTestId('fact-eyes').count()).toBe(0)
     await page.getByTestId('add-procedure').click()
@@ -103,10 +84,10 @@ describe('the life record in Chromium', () => {
   })
 
   it('lets a keeper add a weight and see the chart and the condition factor, and amend it', async () => {
-    const { fishId } = await demoFish(await apiAs(KEEPER), 'Garden pond', 'Pebble')
-    const page = await browser.newPage()
-    await signIn(page, KEEPER, DEMO_PASSWORD)
-    await page.goto(`/fish/${fishId}`)
+    const { fishId } = await demoFish(await demoClient(DEMO.keeper), 'Garden pond', 'Pebble')
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.keeper, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`, { waitUntil: 'networkidle' })
     await scrollThrough(page)
     await page.getByTestId('growth-chart').waitFor()
     const before = await page.locator('[data-testid="growth-chart"] canvas').getAttribute('aria-label')
@@ -138,28 +119,28 @@ describe('the life record in Chromium', () => {
   })
 
   it('keeps what a keeper typed when the network fails, and saves it once when it is back', async () => {
-    const api = await apiAs(US_KEEPER)
+    const api = await demoClient(DEMO.usKeeper)
     const { fishId } = await demoFish(api, 'Garden pond', 'Kenzo')
     const count = async () => {
       const { rows } = await testDb().query(`select count(*)::int as n from timeline_entries where fish_id = $1 and kind = 'measurement'`, [fishId])
       return rows[0].n as number
     }
     const before = await count()
-    const page = await browser.newPage()
-    await signIn(page, US_KEEPER, DEMO_PASSWORD)
-    await page.goto(`/fish/${fishId}`)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.usKeeper, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`, { waitUntil: 'networkidle' })
     await page.getByTestId('add-measurement').click()
     const form = page.getByTestId('entry-form')
     // This person works in US units: pounds and ounces, inches.
     await form.getByLabel('Pounds').fill('6')
     await form.getByLabel('Ounces').fill('4')
     await form.getByLabel('Length (in)').fill('22.5')
-    await browser.setOffline(true)
+    await chromium.context.setOffline(true)
     await form.getByTestId('entry-submit').click()
     await expect.poll(() => form.getByRole('alert').textContent()).toContain('No connection: nothing was saved')
     expect(await form.getByLabel('Pounds').inputValue()).toBe('6')
     await screenshots(page, 'timeline-offline-form')
-    await browser.setOffline(false)
+    await chromium.context.setOffline(false)
     await form.getByTestId('entry-submit').click()
     await form.waitFor({ state: 'detached' })
     await expect.poll(() => page.getByTestId('fact-weight').textContent()).toContain('6 lb 4.0 oz')
@@ -171,10 +152,10 @@ describe('the life record in Chromium', () => {
   })
 
   it('does not offer a keeper a procedure, and the server refuses one', async () => {
-    const { fishId } = await demoFish(await apiAs(KEEPER), 'Garden pond', 'Pilot')
-    const page = await browser.newPage()
-    await signIn(page, KEEPER, DEMO_PASSWORD)
-    await page.goto(`/fish/${fishId}`)
+    const { fishId } = await demoFish(await demoClient(DEMO.keeper), 'Garden pond', 'Pilot')
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.keeper, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`, { waitUntil: 'networkidle' })
     await page.getByTestId('quick-add').waitFor()
     if (await page.getByTestId('more-kinds').count()) await page.getByTestId('more-kinds').click()
     const offered = await page.getByTestId('quick-add').locator('button[data-testid^="add-"]').evaluateAll(buttons => buttons.map(b => b.getAttribute('data-testid')))
@@ -191,7 +172,7 @@ describe('the life record in Chromium', () => {
   })
 
   it('shows a treatment course as doses, a missed one on the profile, and lets the keeper tick one off', async () => {
-    const vet = await apiAs(VET)
+    const vet = await demoClient(DEMO.vet)
     const { fishId } = await demoFish(vet, 'Garden pond', 'Bento')
     const hours = (n: number) => new Date(Date.now() + n * 3_600_000).toISOString()
     // Three daily doses, due 36 h ago, 12 h ago and in 12 h: none given yet, so two are missed.
@@ -201,9 +182,9 @@ describe('the life record in Chromium', () => {
     })
     expect(written.status, JSON.stringify(written.body)).toBe(201)
     const entryId = written.body.entry.id as string
-    const page = await browser.newPage()
-    await signIn(page, KEEPER, DEMO_PASSWORD)
-    await page.goto(`/fish/${fishId}`)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.keeper, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`, { waitUntil: 'networkidle' })
     const fact = page.getByTestId(`fact-treatment-${entryId}`)
     await fact.waitFor()
     expect(await fact.textContent()).toContain('Prescribed by Dr Ada Okafor')
@@ -219,11 +200,11 @@ describe('the life record in Chromium', () => {
   })
 
   it('takes the person to the reason when an amendment has none', async () => {
-    const { fishId } = await demoFish(await apiAs(KEEPER), 'Garden pond', 'Pebble')
-    const page = await browser.newPage()
+    const { fishId } = await demoFish(await demoClient(DEMO.keeper), 'Garden pond', 'Pebble')
+    const page = await chromium.context.newPage()
     await page.setViewportSize({ width: 390, height: 700 })
-    await signIn(page, KEEPER, DEMO_PASSWORD)
-    await page.goto(`/fish/${fishId}`)
+    await signIn(page, DEMO.keeper, DEMO_PASSWORD)
+    await page.goto(`/fish/${fishId}`, { waitUntil: 'networkidle' })
     await page.getByTestId('entry-measurement').first().getByTestId('amend-entry').click()
     const form = page.getByTestId('entry-form')
     await form.getByTestId('entry-submit').click()
@@ -239,8 +220,8 @@ describe('the life record in Chromium', () => {
   })
 
   it('shows the pond’s length–weight curve with its b, and flags the fish losing weight', async () => {
-    const page = await browser.newPage()
-    await signIn(page, KEEPER, DEMO_PASSWORD)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.keeper, DEMO_PASSWORD)
     await page.getByTestId('pond-Garden pond').click()
     await page.getByRole('heading', { name: 'Length and weight' }).waitFor()
     await scrollThrough(page)

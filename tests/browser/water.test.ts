@@ -1,40 +1,15 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { BrowserContext } from 'playwright-core'
+import { describe, expect, it } from 'vitest'
 import { injectionVolumeMl } from '../../shared/utils/doses'
 import { roundForSyringe } from '../../shared/utils/dose-helpers'
-import { openBrowser, screenshots, scrollThrough, signIn } from '../support/browser'
-import { ApiClient } from '../support/client'
-import { closeTestDb } from '../support/db'
+import { browserForFile, screenshots, scrollThrough, signIn } from '../support/browser'
+import { DEMO, DEMO_PASSWORD, demoClient, demoPond } from '../support/demo'
 
-const DEMO_PASSWORD = 'pondside-demo-2026'
-const VET = 'ada.okafor@example.com'
-const US_KEEPER = 'tom.marlow@example.com'
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
-
-async function apiAs(email: string) {
-  const client = new ApiClient()
-  const response = await client.post('/api/auth/sign-in', { email, password: DEMO_PASSWORD })
-  expect(response.status).toBe(200)
-  return client
-}
-
-async function pondOf(client: ApiClient, name: string) {
-  const ponds = (await client.get('/api/ponds')).body as { id: string, name: string }[]
-  return ponds.find(p => p.name === name)!
-}
+const chromium = browserForFile()
 
 describe('the water log in Chromium', () => {
   it('Tom (US units) records a test in °F, sees the flags and the chart with the fish’s events', async () => {
-    const api = await apiAs(US_KEEPER)
-    const pond = await pondOf(api, 'Garden pond')
+    const api = await demoClient(DEMO.usKeeper)
+    const pond = await demoPond(api, 'Garden pond')
     const fish = ((await api.get(`/api/ponds/${pond.id}/fish`)).body as { id: string, name: string, status: string }[]).find(f => f.status === 'alive')!
     // Something that happened to a fish yesterday, so it falls inside the chart's time range.
     const observation = await api.post(`/api/fish/${fish.id}/timeline`, {
@@ -42,9 +17,9 @@ describe('the water log in Chromium', () => {
     })
     expect(observation.status, JSON.stringify(observation.body)).toBe(201)
 
-    const page = await browser.newPage()
-    await signIn(page, US_KEEPER, DEMO_PASSWORD)
-    await page.goto(`/ponds/${pond.id}`)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.usKeeper, DEMO_PASSWORD)
+    await page.goto(`/ponds/${pond.id}`, { waitUntil: 'networkidle' })
     await page.getByTestId('pond-water-link').click()
     await page.waitForURL(`**/ponds/${pond.id}/water`)
     await page.getByTestId('water-test-form').waitFor()
@@ -86,8 +61,8 @@ describe('the water log in Chromium', () => {
   })
 
   it('the vet works out an injection from a fish’s recorded weight and saves it as a treatment', async () => {
-    const api = await apiAs(VET)
-    const pond = await pondOf(api, 'Whitlock koi pond')
+    const api = await demoClient(DEMO.vet)
+    const pond = await demoPond(api, 'Whitlock koi pond')
     const fishList = (await api.get(`/api/ponds/${pond.id}/fish`)).body as { id: string, name: string, status: string }[]
     let chosen: { id: string, name: string, weightG: number, at: string } | undefined
     for (const fish of fishList.filter(f => f.status === 'alive')) {
@@ -99,9 +74,9 @@ describe('the water log in Chromium', () => {
     }
     expect(chosen, 'a demo fish with a recorded weight').toBeDefined()
 
-    const page = await browser.newPage()
-    await signIn(page, VET, DEMO_PASSWORD)
-    await page.goto(`/ponds/${pond.id}/doses`)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.vet, DEMO_PASSWORD)
+    await page.goto(`/ponds/${pond.id}/doses`, { waitUntil: 'networkidle' })
     await page.getByTestId('dose-helper-cautions').waitFor()
     expect(await page.getByTestId('dose-helper-cautions').textContent()).toMatch(/licensed veterinarian.*formulary.*label.*local rules.*[Aa]erate.*UV/s)
     await page.getByTestId('injection-fish').selectOption(chosen!.id)
@@ -144,11 +119,11 @@ describe('the water log in Chromium', () => {
   })
 
   it('the pond volume helper answers in gallons with the caution beside it', async () => {
-    const page = await browser.newPage()
-    await signIn(page, US_KEEPER, DEMO_PASSWORD)
-    const api = await apiAs(US_KEEPER)
-    const pond = await pondOf(api, 'Courtyard pond')
-    await page.goto(`/ponds/${pond.id}/settings`)
+    const page = await chromium.context.newPage()
+    await signIn(page, DEMO.usKeeper, DEMO_PASSWORD)
+    const api = await demoClient(DEMO.usKeeper)
+    const pond = await demoPond(api, 'Courtyard pond')
+    await page.goto(`/ponds/${pond.id}/settings`, { waitUntil: 'networkidle' })
     await page.getByTestId('pond-volume-helper').waitFor()
     await page.getByTestId('shape-rectangle').check()
     await page.getByTestId('volume-length-unit').selectOption('ft')

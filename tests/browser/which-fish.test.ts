@@ -1,24 +1,15 @@
 import { mkdtempSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import type { BrowserContext } from 'playwright-core'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb, testDb } from '../support/db'
+import { describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import { testDb } from '../support/db'
 import { MAIN_URL } from '../support/env'
 import { createFish, createPond, signedInUser } from '../support/factories'
 import { tusUpload } from '../support/photos'
 import { benchFish, referenceShots, renderShot, rotatedCroppedDarker } from '../../scripts/bench/which-fish-set'
 
-let browser: BrowserContext
-
-beforeAll(async () => {
-  browser = await openBrowser()
-})
-afterAll(async () => {
-  await browser?.close()
-  await closeTestDb()
-})
+const chromium = browserForFile()
 
 describe('Which fish is this? in Chromium', () => {
   it('shows the likeliest fish beside a new photo, and confirming adds the photo to that fish', { timeout: 240_000 }, async () => {
@@ -38,9 +29,9 @@ describe('Which fish is this? in Chromium', () => {
     const newPhoto = join(mkdtempSync(join(tmpdir(), 'which-fish-')), 'at-the-pond.jpg')
     writeFileSync(newPhoto, await renderShot(drawn[1]!, rotatedCroppedDarker(drawn[1]!)))
 
-    const page = await browser.newPage()
+    const page = await chromium.context.newPage()
     await signIn(page, owner.email, owner.password)
-    await page.goto(`/ponds/${pond.id}`)
+    await page.goto(`/ponds/${pond.id}`, { waitUntil: 'networkidle' })
     await page.getByTestId('which-fish-open-panel').click()
     await page.getByTestId('which-fish-input').setInputFiles(newPhoto)
     const candidates = page.getByTestId('which-fish-candidates')

@@ -2,6 +2,8 @@ import { mkdtempSync, mkdirSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join, resolve } from 'node:path'
 import { chromium, type BrowserContext, type Page } from 'playwright-core'
+import { afterAll, beforeAll } from 'vitest'
+import { closeTestDb } from './db'
 import { MAIN_URL, ROOT } from './env'
 
 export const SCREENSHOT_DIR = resolve(ROOT, 'tests/screenshots')
@@ -59,4 +61,17 @@ export async function scrollThrough(page: Page) {
       await new Promise(done => setTimeout(done, 60))
     }
   })
+}
+
+/** One Chromium context for a test file, closed with the database pool when the file ends. */
+export function browserForFile(width?: number, height?: number) {
+  const holder = {} as { context: BrowserContext }
+  beforeAll(async () => {
+    holder.context = await openBrowser(width, height)
+  })
+  afterAll(async () => {
+    await holder.context?.close()
+    await closeTestDb()
+  })
+  return holder
 }

@@ -27,7 +27,7 @@ export default defineEventHandler(async (event) => {
     await pipeline(event.node.req, limit, createWriteStream(path))
     if (received === 0) throw archiveRefused('the upload was empty')
     // The whole check runs in the upload worker; only an archive that passed it is opened here to be written.
-    const manifest = await checkArchiveInWorker(path)
+    const manifest = await checkArchiveInWorker(event, path)
     const archive = await openArchive(path).catch((error) => {
       throw error instanceof UploadRefusal ? archiveRefused(error.message, error.status) : error
     })

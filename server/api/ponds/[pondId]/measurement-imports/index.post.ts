@@ -1,4 +1,3 @@
-import { createHash } from 'node:crypto'
 import { pondIdParams } from '#shared/utils/pond-schemas'
 import type { ImportReport } from '#shared/utils/measurement-import'
 
@@ -6,10 +5,15 @@ import type { ImportReport } from '#shared/utils/measurement-import'
 export default defineEventHandler(async (event): Promise<ImportReport> => {
   const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
   const { user } = await requirePondRole(event, pondId, IMPORT_ROLES)
-  const { file, fields } = await readImportForm(event)
-  const sheet = await readSpreadsheet(file, parseMapping(fields.mapping).sheet)
-  const mapping = parseMapping(fields.mapping, sheet.columns, user)
-  const report = await runImport(event, pondId, user.id, sheet, mapping, createHash('sha256').update(file.data).digest('hex'), importOptions(user, fields))
-  setResponseStatus(event, 201)
-  return report
+  const { file, fields, remove } = await receiveImportForm(event)
+  try {
+    const sheet = await readSpreadsheet(event, file, parseMapping(fields.mapping).sheet)
+    const mapping = parseMapping(fields.mapping, sheet.columns, user)
+    const report = await runImport(event, pondId, user.id, sheet, mapping, file.sha256, importOptions(user, fields))
+    setResponseStatus(event, 201)
+    return report
+  }
+  finally {
+    await remove()
+  }
 })

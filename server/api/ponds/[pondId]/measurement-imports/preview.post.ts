@@ -5,9 +5,14 @@ import type { ImportReport } from '#shared/utils/measurement-import'
 export default defineEventHandler(async (event): Promise<ImportReport> => {
   const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
   const { user } = await requirePondRole(event, pondId, IMPORT_ROLES)
-  const { file, fields } = await readImportForm(event)
-  const sheet = await readSpreadsheet(file, parseMapping(fields.mapping).sheet)
-  const mapping = parseMapping(fields.mapping, sheet.columns, user)
-  const { report } = await planImport(useDb(), pondId, sheet, mapping, importOptions(user, fields))
-  return { ...report, importId: null, dryRun: true, importedCount: 0 }
+  const { file, fields, remove } = await receiveImportForm(event)
+  try {
+    const sheet = await readSpreadsheet(event, file, parseMapping(fields.mapping).sheet)
+    const mapping = parseMapping(fields.mapping, sheet.columns, user)
+    const { report } = await planImport(useDb(), pondId, sheet, mapping, importOptions(user, fields))
+    return { ...report, importId: null, dryRun: true, importedCount: 0 }
+  }
+  finally {
+    await remove()
+  }
 })
