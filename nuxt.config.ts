@@ -112,7 +112,8 @@ export default defineNuxtConfig({
     filename: 'sw.ts',
     registerType: 'autoUpdate',
     injectRegister: false,
-    client: { registerPlugin: true, installPrompt: false, periodicSyncForUpdates: 0 },
+    // Registered by app/plugins/offline.client.ts (a plain register call, no inline script, no extra library).
+    client: { registerPlugin: false, installPrompt: false, periodicSyncForUpdates: 0 },
     manifest: {
       name: 'Fintrail',
       short_name: 'Fintrail',

@@ -1,4 +1,4 @@
-import { Upload, type DetailedError } from 'tus-js-client'
+import type { DetailedError } from 'tus-js-client'
 import { FetchError } from 'ofetch'
 import type { PlausibilityWarning } from '#shared/utils/plausibility'
 import { UPLOAD_CHUNK_BYTES } from '#shared/utils/photo-limits'
@@ -83,6 +83,8 @@ function reasonOf(status: number, message: string) {
 }
 
 async function sendPhoto(item: PhotoItem): Promise<void> {
+  // Loaded only when a photo is to be sent: the profile's first load stays within its script budget.
+  const { Upload } = await import('tus-js-client')
   await new Promise<void>((resolve, reject) => {
     const upload = new Upload(item.file, {
       endpoint: '/api/uploads',
@@ -150,8 +152,6 @@ async function sendOne(item: OutboxItem): Promise<Outcome> {
 }
 
 async function run() {
-  const sentFish = new Set<string>()
-  const sentPonds = new Set<string>()
   let later = false
   try {
     const db = await database()
@@ -168,14 +168,14 @@ async function run() {
         break
       }
       if (outcome === 'sent') {
-        if (item.fishId) sentFish.add(item.fishId)
-        sentPonds.add(item.pondId)
+        // Shown as sent right away: a photo after it may take a while to upload.
+        await reloadOutbox()
+        await afterSend(item.fishId ? [item.fishId] : [], [item.pondId]).catch(() => {})
       }
     }
   }
   finally {
     await reloadOutbox()
-    if (sentFish.size || sentPonds.size) await afterSend([...sentFish], [...sentPonds]).catch(() => {})
     clearTimeout(retryTimer)
     if (later && navigator.onLine) {
       // An answer lost on the way or a busy server: try again after a pause that grows to a minute.

@@ -22,6 +22,13 @@ export default defineNuxtPlugin((nuxtApp) => {
     await nuxtApp.runWithContext(() => refreshNuxtData(keys))
   })
 
+  // The service worker keeps the app on the device (service-worker/sw.ts); a new build's worker takes over by itself.
+  if ('serviceWorker' in navigator) {
+    nuxtApp.hook('app:mounted', () => {
+      navigator.serviceWorker.register('/sw.js', { scope: '/' }).catch(() => { /* the app works online without it */ })
+    })
+  }
+
   nuxtApp.hook('app:mounted', async () => {
     if (!session.user) return
     await reloadOutbox().catch(() => {})

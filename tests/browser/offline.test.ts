@@ -3,8 +3,8 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import type { BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { openBrowser, screenshots, signIn } from '../support/browser'
-import { closeTestDb, testDb } from '../support/db'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import { testDb } from '../support/db'
 import { addMember, createFish, createPond, signedInUser } from '../support/factories'
 import { makeKoiPhoto } from '../support/photos'
 import { addEntry, daysAgo } from '../support/timeline'
@@ -13,17 +13,16 @@ import { addEntry, daysAgo } from '../support/timeline'
 // (context.setOffline): the service worker starts the app, the device's kept answers show the fish, new entries
 // wait in the outbox (IndexedDB) and are sent once when the network is back. One browser for the whole file.
 
+const chromium = browserForFile()
 let browser: BrowserContext
 let files: string
 
-beforeAll(async () => {
-  browser = await openBrowser()
+beforeAll(() => {
+  browser = chromium.context
   files = mkdtempSync(join(tmpdir(), 'fintrail-offline-'))
 })
-afterAll(async () => {
-  await browser?.close()
+afterAll(() => {
   rmSync(files, { recursive: true, force: true })
-  await closeTestDb()
 })
 
 /** The service worker controls the page and has the shell; the fish's answers are kept on the device. */
@@ -128,7 +127,7 @@ describe('offline at the pond side, in Chromium', () => {
     await browser.setOffline(false)
     // Sent by itself: the waiting list empties and the record shows the entries as ordinary (sent) ones.
     await page.getByTestId('timeline-waiting').waitFor({ state: 'detached', timeout: 30_000 })
-    await expect.poll(() => page.getByTestId('entry-measurement').count(), { timeout: 10_000 }).toBe(2)
+    await expect.poll(() => page.getByTestId('entry-measurement').count(), { timeout: 30_000 }).toBe(2)
     expect(await page.getByTestId('entry-observation').textContent()).toContain('Rubbing on the pond wall after the storm')
     expect(await page.getByTestId('nav-outbox').count()).toBe(0)
     expect(await page.getByTestId('offline-banner').count()).toBe(0)
