@@ -11,6 +11,7 @@ import { DEMO_PASSWORD, people, type PersonKey } from './seed/people'
 import { courtyardPondFish, gardenPondFish, whitlockPondFish } from './seed/fish'
 import { GROWTH, seedHistories } from './seed/histories'
 import { prepareDemoPhotos } from './seed/photos'
+import { seedWaterTests } from './seed/water'
 
 const SCIENTIFIC = { koi: 'Cyprinus carpio', goldfish: 'Carassius auratus' } as const
 
@@ -66,6 +67,7 @@ async function main() {
       if (profile) await tx.update(schema.fish).set({ profilePhotoId: id }).where(eq(schema.fish.id, fishIds[fishName]!))
     }
     await seedHistories(tx, { people: ids, ponds: { garden, courtyard, whitlock }, fish: fishIds })
+    await seedWaterTests(tx, { people: ids, ponds: { garden, courtyard, whitlock } })
   })
   console.log('demo data seeded')
   await pool.end()

@@ -1,6 +1,8 @@
-import type { HealthRecordPage, HealthRecordSummary } from '#shared/types/record'
 import type { TimelineEntryView } from '#shared/types/timeline'
 import { FetchError } from 'ofetch'
+import type { ApiResponse } from '~/utils/api-fetch'
+
+type RecordPage = ApiResponse<'/api/fish/:fishId/record/entries'>
 
 export interface HealthRecordEntries {
   entries: TimelineEntryView[]
@@ -14,7 +16,7 @@ export interface HealthRecordEntries {
  * response grows with a long life (5,000 entries are ten requests of 500).
  */
 export function useHealthRecord(fishId: MaybeRefOrGetter<string>) {
-  const summary = useFetch<HealthRecordSummary>(() => `/api/fish/${toValue(fishId)}/record`, { key: `fish-record-${toValue(fishId)}` })
+  const summary = useFetch<ApiResponse<'/api/fish/:fishId/record'>>(() => `/api/fish/${toValue(fishId)}/record`, { key: `fish-record-${toValue(fishId)}` })
   const loaded = ref(0)
   const entries = useAsyncData<HealthRecordEntries>(`fish-record-entries-${toValue(fishId)}`, async () => {
     // The head first: its `asOf` fixes which entries the pages hold.
@@ -27,7 +29,7 @@ export function useHealthRecord(fishId: MaybeRefOrGetter<string>) {
     do {
       try {
         const query: Record<string, string | number> = { asOf: head.asOf, limit: head.pageSize, ...(after ? { after } : {}) }
-        const page: HealthRecordPage = await apiFetch<HealthRecordPage>(`/api/fish/${toValue(fishId)}/record/entries`, { query })
+        const page: RecordPage = await apiFetch<RecordPage>(`/api/fish/${toValue(fishId)}/record/entries`, { query })
         all.push(...page.entries)
         loaded.value = all.length
         after = page.nextCursor

@@ -1,8 +1,16 @@
-import type { FishGrowth, PondLengthWeight, StandingFacts, TimelineEntryView, TimelinePage } from '#shared/types/timeline'
+import type { TimelineEntryView } from '#shared/types/timeline'
 import type { TimelineKind } from '#shared/utils/timeline-schemas'
+import type { ApiResponse } from '~/utils/api-fetch'
+
+// The answers' types come from the routes' handlers (Nitro's route table), not from copies written here.
+export type FishGrowth = ApiResponse<'/api/fish/:fishId/growth'>
+export type GrowthPoint = FishGrowth['points'][number]
+export type GrowthMarker = FishGrowth['markers'][number]
+export type PondLengthWeight = ApiResponse<'/api/ponds/:pondId/length-weight'>
+type TimelinePageAnswer = ApiResponse<'/api/fish/:fishId/timeline'>
 
 export function useFishFacts(fishId: MaybeRefOrGetter<string>) {
-  return useSavedFetch<StandingFacts>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
+  return useSavedFetch<ApiResponse<'/api/fish/:fishId/facts'>>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
 }
 
 /** The chart's sample of a long series by default; `every` (the printed record, "show every measurement") asks for all. */
@@ -33,7 +41,7 @@ export function useTimeline(fishId: MaybeRefOrGetter<string>) {
   const olderCursor = ref<string | null | undefined>(undefined)
   const loadingMore = ref(false)
   const moreError = ref('')
-  const first = useSavedFetch<TimelinePage>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+  const first = useSavedFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
     key: `fish-timeline-${toValue(fishId)}`,
     query: computed(() => (kinds.value.length ? { kind: kinds.value.join(',') } : {})),
   })
@@ -51,7 +59,7 @@ export function useTimeline(fishId: MaybeRefOrGetter<string>) {
     try {
       const query: Record<string, string> = { before: nextCursor.value }
       if (kinds.value.length) query.kind = kinds.value.join(',')
-      const page = await apiFetch<TimelinePage>(`/api/fish/${toValue(fishId)}/timeline`, { query })
+      const page = await apiFetch<TimelinePageAnswer>(`/api/fish/${toValue(fishId)}/timeline`, { query })
       older.value = [...older.value, ...page.entries]
       olderCursor.value = page.nextCursor
     }
@@ -79,7 +87,7 @@ export function usePondVets(pondId: MaybeRefOrGetter<string>) {
 
 /** The fish's earlier anaesthetics, newest first, shown before the vet starts another. */
 export function useEarlierAnaesthetics(fishId: MaybeRefOrGetter<string>) {
-  return useFetch<TimelinePage>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+  return useFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
     key: `fish-anaesthetics-${toValue(fishId)}`,
     query: { kind: 'anaesthesia', limit: 20 },
   })

@@ -1,6 +1,7 @@
 import { defineStore } from 'pinia'
 import type { CurrentUser, UnitSystem } from '#shared/types'
 import type { DecimalMark } from '#shared/utils/decimal'
+import type { ApiResponse } from '~/utils/api-fetch'
 
 async function keptUser(): Promise<CurrentUser | null> {
   try {
@@ -40,12 +41,12 @@ export const useSessionStore = defineStore('session', {
       catch { /* no IndexedDB (private mode): the app works, only not offline */ }
     },
     async signIn(body: { email: string, password: string }) {
-      this.user = await apiFetch<CurrentUser>('/api/auth/sign-in', { method: 'POST', body })
+      this.user = await apiFetch<ApiResponse<'/api/auth/sign-in', 'post'>>('/api/auth/sign-in', { method: 'POST', body })
       await this.keepOnDevice()
       return this.user
     },
     async signUp(body: { name: string, email: string, password: string, decimalMark?: DecimalMark }) {
-      this.user = await apiFetch<CurrentUser>('/api/auth/sign-up', { method: 'POST', body })
+      this.user = await apiFetch<ApiResponse<'/api/auth/sign-up', 'post'>>('/api/auth/sign-up', { method: 'POST', body })
       await this.keepOnDevice()
       return this.user
     },
@@ -64,7 +65,7 @@ export const useSessionStore = defineStore('session', {
       await clearNuxtData()
     },
     async update(body: { name?: string, units?: UnitSystem, decimalMark?: DecimalMark }) {
-      this.user = await apiFetch<CurrentUser>('/api/me', { method: 'PATCH', body })
+      this.user = await apiFetch<ApiResponse<'/api/me', 'patch'>>('/api/me', { method: 'PATCH', body })
       await this.keepOnDevice()
     },
   },

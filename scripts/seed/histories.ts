@@ -16,7 +16,7 @@ export interface SeedContext {
   fish: Record<string, string>
 }
 
-type SeedTx = Parameters<Parameters<NodePgDatabase<typeof schema>['transaction']>[0]>[0]
+export type SeedTx = Parameters<Parameters<NodePgDatabase<typeof schema>['transaction']>[0]>[0]
 type Person = 'owner' | 'family' | 'keeper' | 'vet' | 'otherClient'
 type Data = Record<string, unknown>
 

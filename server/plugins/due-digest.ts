@@ -8,7 +8,5 @@ export default defineNitroPlugin(() => {
   registerJob<{ now?: string }>(DUE_DIGEST_JOB, async (data) => {
     await sendDueDigests(data?.now ? new Date(data.now) : new Date(), configuredOrigin())
   }, { retryLimit: 3, retryDelay: 60, expireInSeconds: 600 })
-  getBoss()
-    .then(boss => boss.schedule(DUE_DIGEST_JOB, DUE_DIGEST_CRON, {}, { tz: 'UTC' }))
-    .catch(error => console.error('[due-digest] could not schedule:', error instanceof Error ? error.message : error))
+  whenJobsStart(boss => boss.schedule(DUE_DIGEST_JOB, DUE_DIGEST_CRON, {}, { tz: 'UTC' }))
 })

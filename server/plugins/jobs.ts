@@ -2,8 +2,10 @@
 // so running jobs finish (or are handed back) before the pool closes.
 export default defineNitroPlugin((nitroApp) => {
   if (import.meta.prerender) return
-  setTimeout(() => {
-    getBoss().catch(error => console.error('[jobs] could not start:', error instanceof Error ? error.message : error))
-  }, 0)
-  nitroApp.hooks.hook('close', () => stopJobs())
+  let closing = false
+  setTimeout(() => void startJobsUntilRunning(() => !closing), 0)
+  nitroApp.hooks.hook('close', () => {
+    closing = true
+    return stopJobs()
+  })
 })

@@ -30,6 +30,7 @@ interface Registration { name: string, handler: JobHandler<never>, options: JobO
 
 const JOB_DEFAULTS: Required<JobOptions> = { retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInSeconds: 300, pollingIntervalSeconds: 2, concurrency: 1, policy: 'standard' }
 const registrations = new Map<string, Registration>()
+const whenStarted: ((boss: PgBoss) => Promise<unknown>)[] = []
 let starting: Promise<PgBoss> | undefined
 let boss: PgBoss | undefined
 
@@ -53,15 +54,46 @@ export function getBoss(): Promise<PgBoss> {
     const instance = new PgBoss({ connectionString: String(url), schema: jobsSchema(), max: 4, application_name: 'fintrail-jobs' })
     // Without a listener an 'error' event would end the process (e.g. while the database restarts).
     instance.on('error', error => console.error('[jobs]', error.message))
-    await instance.start()
-    for (const registration of registrations.values()) await startWorker(instance, registration)
+    try {
+      await instance.start()
+      for (const registration of registrations.values()) await startWorker(instance, registration)
+      for (const started of whenStarted) await started(instance)
+    }
+    catch (error) {
+      // A start that failed half-way leaves no pool or timers behind; the caller tries again.
+      await instance.stop({ graceful: false, wait: false }).catch(() => undefined)
+      throw error
+    }
     boss = instance
+    console.info('[jobs] running')
     return instance
   })().catch((error) => {
     starting = undefined // the next call tries again (the database may have been down)
     throw error
   })
   return starting
+}
+
+/** Work to do each time the runner starts (a schedule to keep), after the workers: a failure fails the start. */
+export function whenJobsStart(started: (boss: PgBoss) => Promise<unknown>) {
+  whenStarted.push(started)
+}
+
+/**
+ * Starts the runner and keeps trying, with a growing pause, until it runs: the database may be down, or several
+ * instances starting at once may create pg-boss's tables together and one of them lose a deadlock.
+ */
+export async function startJobsUntilRunning(stillWanted: () => boolean) {
+  for (let pause = 1000; stillWanted(); pause = Math.min(pause * 2, 30_000)) {
+    try {
+      await getBoss()
+      return
+    }
+    catch (error) {
+      console.error(`[jobs] could not start (trying again in ${pause / 1000} s):`, error instanceof Error ? error.message : error)
+      await new Promise(resolve => setTimeout(resolve, pause))
+    }
+  }
 }
 
 /** Adds a worker for the jobs called `name`; a handler that throws is retried with backoff. */

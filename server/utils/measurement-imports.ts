@@ -111,7 +111,9 @@ export async function planImport(db: Reader, pondId: string, sheet: Spreadsheet,
   const skipped: ImportReport['skipped'] = []
   const candidates: Plan['ready'] = []
   const firstRowOfKey = new Map<string, number>()
-  for (const row of sheet.rows) {
+  for (const [at, row] of sheet.rows.entries()) {
+    // 100,000 rows take the event loop for a second or more: let other requests in every few thousand.
+    if (at % 2_000 === 1_999) await new Promise(resolve => setImmediate(resolve))
     const result = readMeasurementRow(row.cells, mapping, index, today, options.style)
     if (!result.ok) {
       problems.push({ row: row.rowNumber, reason: result.reason, message: result.message, cells: Object.fromEntries(mapped.map(c => [c, cellText(row.cells[c])])) })

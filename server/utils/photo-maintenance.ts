@@ -4,10 +4,12 @@ import { and, eq, inArray, isNotNull, lt } from 'drizzle-orm'
 import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
 import { PhotoRejection } from './photo-files'
 import { deletePhotoFiles, finishUpload, resumePendingPhoto } from './photo-pipeline'
-import { PHOTO_ID_PATTERN, UPLOAD_ID_PATTERN, derivedRoot, originalsDir, uploadPath, uploadsDir } from './photo-storage'
+import { PHOTO_ID_PATTERN, UPLOAD_ID_PATTERN, derivedRoot, originalsDir, storageRoot, uploadPath, uploadsDir } from './photo-storage'
 
 // Work files younger than this may belong to a job running right now (in this or another process).
 const STRAY_AFTER_MS = 60 * 60_000
+// A received spreadsheet or pond archive (server/utils/spreadsheets.ts, api/ponds/import.post.ts) waiting to be read.
+const RECEIVED_UPLOAD = /^(sheet-[0-9a-f-]{36}|import-[0-9a-f-]{36}\.zip)$/
 
 async function list(dir: string) {
   return readdir(dir).catch(() => [] as string[])
@@ -94,6 +96,13 @@ async function sweepStrayFiles() {
       await rm(path, { recursive: true, force: true })
       swept++
     }
+  }
+  // A request removes the file it received when it ends; one left here was cut off by a stop of the server.
+  const received = join(storageRoot(), 'tmp')
+  for (const name of await list(received)) {
+    if (!RECEIVED_UPLOAD.test(name) || (await ageMs(join(received, name))) < STRAY_AFTER_MS) continue
+    await rm(join(received, name), { force: true })
+    swept++
   }
   // An upload's bytes without its .json (or the reverse) cannot be resumed by anyone.
   const uploads = await list(uploadsDir())

@@ -1,5 +1,5 @@
-import type { FISH_SPECIES, FISH_STATUSES, OUTGOING_MAIL_STATUSES, PHOTO_STATES, PHOTO_VIEWS, POND_ROLES, UNIT_SYSTEMS, FISH_SEXES } from '../utils/enums'
-import type { AsJson, FishRow, PhotoRow, PondRow, UserRow } from './rows'
+import type { FISH_SPECIES, FISH_STATUSES, PHOTO_STATES, PHOTO_VIEWS, POND_ROLES, UNIT_SYSTEMS, FISH_SEXES } from '../utils/enums'
+import type { AsJson, FishRow, InvitationRow, OutgoingMailRow, PhotoRow, PondRow, UserRow } from './rows'
 
 export type PondRole = typeof POND_ROLES[number]
 
@@ -52,13 +52,6 @@ export interface FishProfile extends AsJson<Pick<FishRow, 'id' | 'pondId' | 'nam
   profileFocus: PhotoFocus | null
 }
 
-export interface FishEditRecord {
-  id: string
-  at: string
-  by: string
-  changes: { field: string, from: unknown, to: unknown }[]
-}
-
 export type PhotoView = typeof PHOTO_VIEWS[number]
 export type PhotoState = typeof PHOTO_STATES[number]
 
@@ -85,19 +78,9 @@ export interface FishPhotos {
 export interface PhotoFocus { x: number, y: number }
 
 /** Where the e-mail announcing an offer stands, shown to its sender with a resend button. */
-export interface OfferMailState {
-  status: typeof OUTGOING_MAIL_STATUSES[number]
-  attempts: number
-  /** A plain reason when the last attempt failed; the raw SMTP error stays in the server log. */
-  lastError: string | null
-  updatedAt: string
-}
+/** From the outgoing mail row; `lastError` is a plain reason when the last attempt failed (the raw SMTP error stays in the server log). */
+export type OfferMailState = AsJson<Pick<OutgoingMailRow, 'status' | 'attempts' | 'lastError' | 'updatedAt'>>
 
-export interface PendingInvitation {
-  id: string
-  email: string
-  role: PondRole
-  expiresAt: string
-  createdAt: string
+export interface PendingInvitation extends AsJson<Pick<InvitationRow, 'id' | 'email' | 'role' | 'expiresAt' | 'createdAt'>> {
   mail: OfferMailState | null
 }

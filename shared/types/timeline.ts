@@ -1,42 +1,37 @@
-// The shapes the timeline routes answer with.
+// The shapes the timeline routes answer with; a field that is a column takes its type from the Drizzle row
+// (shared/types/rows.ts). The growth and length-weight answers have no copy here: the app reads them from
+// their routes (`ApiResponse<'/api/fish/:fishId/growth'>`, app/composables/useTimeline.ts).
 import type { TimelineKind } from '../utils/timeline-schemas'
-import type { WeightChangeAlert } from '../utils/condition'
 import type { TreatmentSchedule } from '../utils/treatment-schedule'
+import type { ArchivePersonRow, AsJson, FishRow, TimelineEntryRow, TimelineRevisionRow, UserRow } from './rows'
 
-export interface PersonRef { id: string, name: string }
-export interface FishRef { id: string, name: string }
+export type PersonRef = Pick<UserRow, 'id' | 'name'>
+export type FishRef = Pick<FishRow, 'id' | 'name'>
 
 /**
  * An entry (or photo) read in from a pond archive: its author as the archive names them, never a local
  * account, with the archive's date and who imported it.
  */
-export interface ImportedAuthorship {
-  name: string
+export interface ImportedAuthorship extends Pick<ArchivePersonRow, 'name'> {
   /** Their role in the pond when the archive was made, if the archive says. */
-  role: string | null
+  role: ArchivePersonRow['role']
   archiveMadeAt: string
   importedBy: string
   importedAt: string
 }
 
-export interface TimelineEntryView {
-  id: string
+/** From the row; `kind` also names the photos and pond events the timeline shows beside the entries. */
+export interface TimelineEntryView extends AsJson<Pick<TimelineEntryRow, 'id' | 'occurredAt' | 'data' | 'revision' | 'enteredInError'
+  | 'errorReason' | 'errorAt' | 'linkedEntryId' | 'createdAt'>> {
   kind: TimelineKind
-  occurredAt: string
   /** The local author; null for an imported entry (see `imported`). */
   author: PersonRef | null
   imported: ImportedAuthorship | null
-  data: Record<string, unknown>
-  revision: number
-  enteredInError: boolean
-  errorReason: string | null
   errorBy: string | null
-  errorAt: string | null
   /** 'related' when this is a companion note written on the other fish and shown here too. */
   viewpoint: 'subject' | 'related'
   /** For a companion note: the fish on the other side, seen from this timeline. */
   otherFish: FishRef | null
-  linkedEntryId: string | null
   photo: { id: string, caption: string, view: string } | null
   derived: {
     conditionK?: number | null
@@ -49,7 +44,6 @@ export interface TimelineEntryView {
   }
   /** Whether the person asking may amend it or mark it entered in error. */
   canAmend: boolean
-  createdAt: string
 }
 
 export interface TimelinePage {
@@ -57,14 +51,9 @@ export interface TimelinePage {
   nextCursor: string | null
 }
 
-export interface TimelineRevisionView {
-  revision: number
-  occurredAt: string
-  data: Record<string, unknown>
+export interface TimelineRevisionView extends AsJson<Pick<TimelineRevisionRow, 'revision' | 'occurredAt' | 'data' | 'reason' | 'createdAt'>> {
   /** For a revision read in from a pond archive: the archive's person (id of that record), with `imported` true. */
   author: PersonRef & { imported: boolean }
-  reason: string | null
-  createdAt: string
 }
 
 export interface StandingFacts {
@@ -100,48 +89,4 @@ export interface CurrentTreatment {
   /** The vet who prescribed it: the instructing vet, or the vet who wrote it; a name typed before vets were chosen from the pond. */
   prescribedBy: string | null
   schedule: { doseCount: number, given: number, missed: number, nextDueAt: string | null, missedDoses: { doseNumber: number, dueAt: string }[] } | null
-}
-
-export interface GrowthPoint {
-  entryId: string
-  at: string
-  weightG: number | null
-  lengthCm: number | null
-  lengthType: string
-  conditionK: number | null
-}
-
-export interface GrowthMarker {
-  entryId: string
-  at: string
-  kind: 'procedure' | 'treatment' | 'death' | 'companion_death'
-  label: string
-}
-
-export interface FishGrowth {
-  /** Every measurement, or with a long history the ones the chart needs (see `sampled`). */
-  points: GrowthPoint[]
-  /** How many measurements the fish has in all. */
-  totalPoints: number
-  /** True when `points` is a shape-keeping sample; `?points=all` gives every one. */
-  sampled: boolean
-  markers: GrowthMarker[]
-  /** Always computed from every weighing, sampled or not. */
-  alerts: WeightChangeAlert[]
-}
-
-export interface LengthWeightSeries {
-  /** The fish's species as the app names it (koi, goldfish, other). */
-  species: string
-  /** Fits are grouped by scientific name: two "other" species never share a curve. */
-  scientificName: string
-  /** Fitted on each fish's latest weighing (n = number of fish); b outside 2.5–3.5 is flagged (Froese 2006). */
-  fit: { a: number, b: number, r2: number, n: number, bOutsideRange: boolean } | null
-  fish: { id: string, name: string, points: { lengthCm: number, weightG: number, at: string }[] }[]
-}
-
-export interface PondLengthWeight {
-  series: LengthWeightSeries[]
-  /** Measurements left out of the fit because the length was not total length. */
-  otherLengthTypes: number
 }

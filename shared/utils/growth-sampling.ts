@@ -1,11 +1,13 @@
 import { createLTTB } from 'downsample'
-import type { GrowthPoint } from '../types/timeline'
 
 /** At most this many points per series (weight, length, condition) go to the chart; more adds nothing a screen shows. */
 export const GROWTH_CHART_POINTS_PER_SERIES = 150
 
 const lttb = createLTTB<{ index: number, t: number, v: number }>({ x: 't', y: 'v' })
-const SERIES: ((p: GrowthPoint) => number | null)[] = [p => p.weightG, p => p.lengthCm, p => p.conditionK]
+/** What the sampler reads of a measurement; the route's points carry more, and keep it. */
+export interface GrowthSample { at: string, weightG: number | null, lengthCm: number | null, conditionK: number | null }
+
+const SERIES: ((p: GrowthSample) => number | null)[] = [p => p.weightG, p => p.lengthCm, p => p.conditionK]
 
 /**
  * The measurements a chart needs to keep its shape: Largest-Triangle-Three-Buckets (Steinarsson 2013,
@@ -13,7 +15,7 @@ const SERIES: ((p: GrowthPoint) => number | null)[] = [p => p.weightG, p => p.le
  * time bucket that spans the largest triangle with its neighbours, so peaks and drops survive. It runs on
  * weight, length and condition factor separately; the union of the chosen measurements is kept in time order.
  */
-export function sampleGrowthPoints(points: GrowthPoint[], perSeries = GROWTH_CHART_POINTS_PER_SERIES): GrowthPoint[] {
+export function sampleGrowthPoints<Point extends GrowthSample>(points: Point[], perSeries = GROWTH_CHART_POINTS_PER_SERIES): Point[] {
   if (points.length <= perSeries) return points
   const keep = new Set<number>()
   for (const valueOf of SERIES) {

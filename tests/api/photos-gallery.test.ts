@@ -1,11 +1,11 @@
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, utimesSync, writeFileSync } from 'node:fs'
 import { randomBytes, randomUUID } from 'node:crypto'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { ApiClient } from '../support/client'
 import { closeTestDb, testDb } from '../support/db'
-import { MAIN_PORT, MAIN_URL } from '../support/env'
+import { MAIN_PORT, MAIN_URL, testEnv } from '../support/env'
 import { createFish, pondWithRoles } from '../support/factories'
 import { ALL_DERIVED, TUS, createUpload, filesOf, makeJpeg, photoRows, sha256, storageDirs, strayFiles, tusRequest, tusUpload } from '../support/photos'
 import { startServer } from '../support/server'
@@ -266,12 +266,20 @@ describe('at start and every hour', () => {
     mkdirSync(join(dirs.derived, strayId))
     writeFileSync(join(dirs.derived, strayId, '320.webp'), 'left over')
 
+    // A spreadsheet and an archive received by requests a stop cut off two hours ago, and one being read now.
+    const received = join(testEnv().storageDir, 'tmp')
+    mkdirSync(received, { recursive: true })
+    const [leftSheet, leftArchive, current] = [`sheet-${randomUUID()}`, `import-${randomUUID()}.zip`, `sheet-${randomUUID()}`].map(name => join(received, name))
+    for (const path of [leftSheet!, leftArchive!, current!]) writeFileSync(path, 'received')
+    const twoHoursAgo = new Date(Date.now() - 2 * 3_600_000)
+    for (const path of [leftSheet!, leftArchive!]) utimesSync(path, twoHoursAgo, twoHoursAgo)
+
     const server = await startServer(MAIN_PORT + 3)
     try {
       const deadline = Date.now() + 20_000
       for (;;) {
         const { rows } = await testDb().query('select (select count(*)::int from photos where id = $1) as old, (select count(*)::int from photos where upload_id = $2 and state = \'ready\') as arrived, (select state from photos where id = $3) as interrupted', [old.id, arrivedId, interrupted.id])
-        if (rows[0].old === 0 && rows[0].arrived === 1 && rows[0].interrupted === 'ready' && !existsSync(join(dirs.originals, strayId))) break
+        if (rows[0].old === 0 && rows[0].arrived === 1 && rows[0].interrupted === 'ready' && !existsSync(join(dirs.originals, strayId)) && !existsSync(leftArchive!)) break
         if (Date.now() > deadline) throw new Error(`maintenance did not finish: ${JSON.stringify(rows[0])}\n${server.output()}`)
         await new Promise(r => setTimeout(r, 200))
       }
@@ -288,5 +296,7 @@ describe('at start and every hour', () => {
     expect(late).toMatchObject({ state: 'ready', sha256: sha256(arrived), uploader_id: world.owner.user.id, fish_id: fish.id })
     expect(existsSync(join(dirs.derived, strayId))).toBe(false)
     expect(await strayFiles()).toEqual([])
+    expect([leftSheet, leftArchive, current].map(path => existsSync(path!))).toEqual([false, false, true])
+    rmSync(current!)
   })
 })

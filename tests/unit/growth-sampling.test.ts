@@ -3,10 +3,9 @@
 // the first and last points are always kept, the rest is split into equal buckets and one point is taken
 // from each, the one spanning the largest triangle with its neighbours, so a lone peak survives.
 import { describe, expect, it } from 'vitest'
-import type { GrowthPoint } from '../../shared/types/timeline'
-import { sampleGrowthPoints } from '../../shared/utils/growth-sampling'
+import { sampleGrowthPoints, type GrowthSample } from '../../shared/utils/growth-sampling'
 
-function weekly(count: number, weight: (i: number) => number | null, length: (i: number) => number | null = () => null): GrowthPoint[] {
+function weekly(count: number, weight: (i: number) => number | null, length: (i: number) => number | null = () => null): (GrowthSample & { entryId: string, lengthType: string })[] {
   return Array.from({ length: count }, (_, i) => ({
     entryId: `e${i}`, at: new Date(Date.UTC(2004, 0, 1) + i * 7 * 86_400_000).toISOString(),
     weightG: weight(i), lengthCm: length(i), lengthType: 'total', conditionK: null,

@@ -1,5 +1,6 @@
 // The timeline's read queries, kept apart with explicit imports so the benchmark times the very SQL the routes run.
 import { sql, type SQL } from 'drizzle-orm'
+import type { PondRole } from '../../../shared/types'
 import type { TimelineKind } from '../../../shared/utils/timeline-schemas'
 import { PROLONGED_RECOVERY_MINUTES } from '../../../shared/utils/timeline-derived'
 
@@ -14,7 +15,7 @@ export interface TimelineRow extends Record<string, unknown> {
   author_name: string | null
   /** Set when the entry was read in from a pond archive (the author is then the archive's person, author_id null). */
   imported_author_name: string | null
-  imported_author_role: string | null
+  imported_author_role: PondRole | null
   imported_exported_at: Date | null
   imported_at: Date | null
   imported_by_name: string | null

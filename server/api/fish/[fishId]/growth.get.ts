@@ -1,7 +1,6 @@
 import { fishIdParams, growthQuerySchema } from '#shared/utils/fish-schemas'
 import { sampleGrowthPoints } from '#shared/utils/growth-sampling'
 import { fultonK, weightChangeAlert } from '#shared/utils/condition'
-import type { FishGrowth, GrowthMarker } from '#shared/types/timeline'
 import { growthSql, type GrowthRow } from '../../../db/queries/timeline'
 
 function markerLabel(e: GrowthRow['events'][number]) {
@@ -10,7 +9,13 @@ function markerLabel(e: GrowthRow['events'][number]) {
   return 'Died'
 }
 
-export default defineEventHandler(async (event): Promise<FishGrowth> => {
+/**
+ * The growth chart's data; its type is the app's (`ApiResponse<'/api/fish/:fishId/growth'>`). `points` holds every
+ * measurement, or with a long history the shape-keeping sample the chart needs (`sampled`; `?points=all` gives
+ * all); `totalPoints` counts them all; `markers` are the entries that matter on the time axis; `alerts` are
+ * always computed from every weighing.
+ */
+export default defineEventHandler(async (event) => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   const { fish } = await requireFishRole(event, fishId)
   const query = await queryValidated(event, growthQuerySchema)
@@ -20,7 +25,7 @@ export default defineEventHandler(async (event): Promise<FishGrowth> => {
     entryId: p.entryId, at: new Date(p.at).toISOString(), weightG: p.weightG ?? null, lengthCm: p.lengthCm ?? null,
     lengthType: p.lengthType ?? 'total', conditionK: p.weightG != null && p.lengthCm != null ? fultonK(p.weightG, p.lengthCm) : null,
   }))
-  const markers: GrowthMarker[] = [
+  const markers = [
     ...g.events.map(e => ({ entryId: e.entryId, at: new Date(e.at).toISOString(), kind: e.kind, label: markerLabel(e) })),
     ...g.companion_deaths.map(d => ({ entryId: d.entryId, at: new Date(d.at).toISOString(), kind: 'companion_death' as const, label: `${d.fishName} died` })),
   ].sort((a, b) => a.at.localeCompare(b.at))

@@ -1,15 +1,18 @@
 import { pondIdParams } from '#shared/utils/pond-schemas'
 import { fitLatestPerFish } from '#shared/utils/condition'
-import type { LengthWeightSeries, PondLengthWeight } from '#shared/types/timeline'
 import { pondLengthWeightSql, type LengthWeightRow } from '../../../db/queries/timeline'
 
 // Each species (by scientific name) gets its own fit, from one point per fish: its latest weighing with a
 // total length (a fork length makes the same fish look heavier). The chart still shows every weighing.
-export default defineEventHandler(async (event): Promise<PondLengthWeight> => {
+// Fits are grouped by scientific name (two "other" species never share a curve); a fit with b outside 2.5-3.5
+// is flagged (Froese 2006). `otherLengthTypes` counts the measurements left out for not being total length.
+interface FishPoints { id: string, name: string, points: { lengthCm: number, weightG: number, at: string }[] }
+
+export default defineEventHandler(async (event) => {
   const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
   await requirePondRole(event, pondId)
   const { rows } = await useDb().execute<LengthWeightRow>(pondLengthWeightSql(pondId))
-  const bySpecies = new Map<string, { species: string, scientificName: string, fish: Map<string, LengthWeightSeries['fish'][number]> }>()
+  const bySpecies = new Map<string, { species: string, scientificName: string, fish: Map<string, FishPoints> }>()
   let otherLengthTypes = 0
   for (const r of rows) {
     if (r.length_type !== 'total') {

@@ -1,11 +1,10 @@
 import { fishIdParams } from '#shared/utils/fish-schemas'
 import { recordPageQuerySchema } from '#shared/utils/record-schemas'
-import type { HealthRecordPage } from '#shared/types/record'
 import type { TimelineRow } from '../../../../db/queries/timeline'
 import { recordPageSql } from '../../../../db/queries/record'
 
 /** One page of the health record, oldest first, of the entries written up to the record's `asOf`. */
-export default defineEventHandler(async (event): Promise<HealthRecordPage> => {
+export default defineEventHandler(async (event) => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   const { user, role, fish } = await requireFishRole(event, fishId)
   const query = await queryValidated(event, recordPageQuerySchema)
