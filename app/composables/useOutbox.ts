@@ -170,7 +170,8 @@ async function run() {
       if (outcome === 'sent') {
         // Shown as sent right away: a photo after it may take a while to upload.
         await reloadOutbox()
-        await afterSend(item.fishId ? [item.fishId] : [], [item.pondId]).catch(() => {})
+        // Not awaited: a slow page refresh must never hold back the items after this one.
+        void afterSend(item.fishId ? [item.fishId] : [], [item.pondId]).catch(() => {})
       }
     }
   }

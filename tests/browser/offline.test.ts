@@ -126,7 +126,8 @@ describe('offline at the pond side, in Chromium', () => {
 
     await browser.setOffline(false)
     // Sent by itself: the waiting list empties and the record shows the entries as ordinary (sent) ones.
-    await page.getByTestId('timeline-waiting').waitFor({ state: 'detached', timeout: 30_000 })
+    // The photo is processed (sharp) before its upload answers: on a busy machine that takes a while.
+    await page.getByTestId('timeline-waiting').waitFor({ state: 'detached', timeout: 60_000 })
     await expect.poll(() => page.getByTestId('entry-measurement').count(), { timeout: 30_000 }).toBe(2)
     expect(await page.getByTestId('entry-observation').textContent()).toContain('Rubbing on the pond wall after the storm')
     expect(await page.getByTestId('nav-outbox').count()).toBe(0)
@@ -141,7 +142,7 @@ describe('offline at the pond side, in Chromium', () => {
     expect(weight!.data.weightG).toBe(1300)
     expect(weight!.data.lengthCm).toBe(43)
     await page.close()
-  })
+  }, 150_000)
 
   it('sends again after the answer to a send was lost, and the server keeps the entry once', async () => {
     const owner = await signedInUser({ name: 'Lost Answer Owner' })
