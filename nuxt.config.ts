@@ -37,6 +37,14 @@ export default defineNuxtConfig({
     appOrigin: '',
     trustProxy: false,
     storageDir: '',
+    // An S3-compatible bucket for photos and uploads (empty: files stay in storageDir). See docs/operations.md.
+    storageS3Bucket: '',
+    storageS3Endpoint: '',
+    storageS3Region: '',
+    storageS3AccessKeyId: '',
+    storageS3SecretAccessKey: '',
+    // 'true' or 'false'; empty: path style whenever an endpoint is set.
+    storageS3ForcePathStyle: '',
     smtpHost: '127.0.0.1',
     smtpPort: 1025,
     mailFrom: 'Fintrail <no-reply@fintrail.local>',
@@ -45,6 +53,8 @@ export default defineNuxtConfig({
     mailRetryDelaySeconds: 10,
     // PostgreSQL schema of the job queue (pg-boss), in the app's database.
     jobsSchema: 'pgboss',
+    // On SIGTERM a running job gets this long to finish before it is failed back to the queue for another instance.
+    jobsStopGraceSeconds: 5,
     // First automatic retry of a photo whose files could not be written (doubled each time).
     photoRetryDelaySeconds: 30,
     // How often each instance finishes photos whose instance stopped mid-way (0: only at start).
@@ -103,6 +113,9 @@ export default defineNuxtConfig({
       for (const chunk of Object.values(manifest)) chunk.prefetch = false
     },
   },
+  // The app reads the signed-in person from /api/me (stores/session.ts), never from the module's
+  // useUserSession: its plugin would add an inner request to /api/_auth/session to every server render.
+  auth: { loadStrategy: 'none' },
   eslint: { config: { stylistic: true } },
   // Installable app and offline start (see "Offline at the pond side" in DEVELOPERS.md). Our own service worker
   // (service-worker/sw.ts): Workbox precaches the built files; records are kept in IndexedDB by the app, never here.

@@ -6,10 +6,11 @@
 // added or purged 30 days after removal, so every file a dumped row names is already in the folder when it is read.
 import { execFileSync } from 'node:child_process'
 import { createHash } from 'node:crypto'
-import { createReadStream, existsSync, linkSync, mkdirSync, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync, copyFileSync } from 'node:fs'
+import { createReadStream, createWriteStream, existsSync, linkSync, mkdirSync, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync, copyFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { dirname, join, relative, resolve } from 'node:path'
-import { BACKUP_FOLDERS, MANIFEST_VERSION, postgresTool, storageDirFromEnv, databaseUrlFromEnv, type BackupManifest } from './backup/common'
+import { pipeline } from 'node:stream/promises'
+import { BACKUP_FOLDERS, MANIFEST_VERSION, bucketFromEnv, isAppObject, postgresTool, storageDirFromEnv, databaseUrlFromEnv, type BackupManifest } from './backup/common'
 
 async function sha256Of(path: string) {
   const hash = createHash('sha256')
@@ -33,7 +34,22 @@ async function main() {
     execFileSync(postgresTool('pg_dump'), ['--format=custom', '--no-owner', '--file', join(staging, 'database.dump'), databaseUrl], { stdio: ['ignore', 'inherit', 'inherit'] })
 
     const files: BackupManifest['files'] = []
-    for (const folder of BACKUP_FOLDERS) {
+    const bucket = bucketFromEnv()
+    // Objects are immutable once written (a new set of sizes replaces keys whole), so a copy made now is consistent.
+    for await (const item of bucket ? bucket.list('') : []) {
+      if (!isAppObject(item.key)) continue
+      const target = join(staging, 'files', item.key)
+      mkdirSync(dirname(target), { recursive: true })
+      try {
+        await pipeline(await bucket!.read(item.key), createWriteStream(target))
+      }
+      catch (error) {
+        if ((error as NodeJS.ErrnoException).code === 'ENOENT') continue // removed since it was listed
+        throw error
+      }
+      files.push({ path: item.key, bytes: statSync(target).size, sha256: await sha256Of(target) })
+    }
+    for (const folder of bucket ? [] : BACKUP_FOLDERS) {
       for (const source of filesUnder(join(storageDir, folder))) {
         const name = relative(storageDir, source)
         const target = join(staging, 'files', name)
@@ -54,11 +70,12 @@ async function main() {
       createdAt: new Date().toISOString(),
       database: { file: 'database.dump', bytes: statSync(join(staging, 'database.dump')).size, sha256: await sha256Of(join(staging, 'database.dump')) },
       files,
+      store: bucket ? 's3' : 'local',
     }
     writeFileSync(join(staging, 'manifest.json'), `${JSON.stringify(manifest, null, 2)}\n`)
     mkdirSync(dirname(output), { recursive: true })
     execFileSync('tar', ['-cf', output, '-C', staging, '.'])
-    console.log(`Backup written: ${output} (${files.length} files, database ${manifest.database.bytes} bytes)`)
+    console.log(`Backup written: ${output} (${files.length} files${bucket ? ` from ${bucket.description}` : ''}, database ${manifest.database.bytes} bytes)`)
   }
   finally {
     rmSync(staging, { recursive: true, force: true })

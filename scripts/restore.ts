@@ -7,7 +7,8 @@ import { copyFileSync, createReadStream, existsSync, mkdirSync, mkdtempSync, rea
 import { tmpdir } from 'node:os'
 import { dirname, join, normalize, resolve } from 'node:path'
 import pg from 'pg'
-import { BACKUP_FOLDERS, MANIFEST_VERSION, databaseUrlFromEnv, postgresTool, storageDirFromEnv, type BackupManifest } from './backup/common'
+import type { FileStorage } from '../server/storage/file-storage'
+import { BACKUP_FOLDERS, MANIFEST_VERSION, bucketFromEnv, databaseUrlFromEnv, isAppObject, postgresTool, storageDirFromEnv, type BackupManifest } from './backup/common'
 
 async function sha256Of(path: string) {
   const hash = createHash('sha256')
@@ -25,7 +26,7 @@ async function verify(staging: string, manifest: BackupManifest) {
   }
 }
 
-async function assertEmptyTargets(databaseUrl: string, storageDir: string) {
+async function assertEmptyTargets(databaseUrl: string, storageDir: string, bucket: FileStorage | null) {
   const client = new pg.Client({ connectionString: databaseUrl })
   await client.connect()
   try {
@@ -35,7 +36,10 @@ async function assertEmptyTargets(databaseUrl: string, storageDir: string) {
   finally {
     await client.end()
   }
-  for (const folder of BACKUP_FOLDERS) {
+  for await (const item of bucket ? bucket.list('') : []) {
+    if (isAppObject(item.key)) throw new Error(`${bucket!.description} is not empty: restore into an empty bucket`)
+  }
+  for (const folder of bucket ? [] : BACKUP_FOLDERS) {
     const dir = join(storageDir, folder)
     if (existsSync(dir) && readdirSync(dir).length > 0) throw new Error(`${dir} is not empty: restore into an empty storage folder`)
   }
@@ -52,10 +56,21 @@ async function main() {
     const manifest = JSON.parse(readFileSync(join(staging, 'manifest.json'), 'utf8')) as BackupManifest
     if (manifest.version !== MANIFEST_VERSION) throw new Error(`backup format ${manifest.version} is not known to this version`)
     await verify(staging, manifest)
-    await assertEmptyTargets(databaseUrl, storageDir)
+    const bucket = bucketFromEnv()
+    await assertEmptyTargets(databaseUrl, storageDir, bucket)
 
     execFileSync(postgresTool('pg_restore'), ['--no-owner', '--exit-on-error', '--dbname', databaseUrl, join(staging, manifest.database.file)], { stdio: ['ignore', 'inherit', 'inherit'] })
+    const from = manifest.store ?? 'local'
+    const to = bucket ? 's3' : 'local'
     for (const entry of manifest.files) {
+      // Between a folder and a bucket only the photos move: unfinished uploads are kept differently by the two
+      // tus stores (a finished one is the same bytes as its photo's original, which is restored).
+      const isUpload = !entry.path.startsWith('photos/')
+      if (from !== to && isUpload) continue
+      if (bucket) {
+        await bucket.putFile(entry.path, join(staging, 'files', entry.path))
+        continue
+      }
       const target = join(storageDir, entry.path)
       mkdirSync(dirname(target), { recursive: true })
       copyFileSync(join(staging, 'files', entry.path), target)

@@ -31,6 +31,9 @@ export function fishRecordKeys(fishId: string) {
   return [`fish-${fishId}`, `fish-facts-${fishId}`, `fish-growth-${fishId}`, `fish-growth-${fishId}-all`, `fish-timeline-${fishId}`, `fish-history-${fishId}`]
 }
 
+/** Entries rendered with the profile page; "Show older entries" then brings the API's default page (50). */
+export const FIRST_TIMELINE_PAGE = 20
+
 /**
  * The first page comes through useFetch (rendered on the server, refreshed by key); older pages
  * are appended as the person asks for them. Changing the kind filter starts again from the top.
@@ -41,9 +44,15 @@ export function useTimeline(fishId: MaybeRefOrGetter<string>) {
   const olderCursor = ref<string | null | undefined>(undefined)
   const loadingMore = ref(false)
   const moreError = ref('')
+<<<<<<< HEAD
   const first = useSavedFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+=======
+  // The first page comes with the profile's HTML (and again in its payload): a screen or two of entries keeps a
+  // long life's page small on a slow link; older pages are larger, asked for one at a time.
+  const first = useFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+>>>>>>> main
     key: `fish-timeline-${toValue(fishId)}`,
-    query: computed(() => (kinds.value.length ? { kind: kinds.value.join(',') } : {})),
+    query: computed(() => ({ limit: FIRST_TIMELINE_PAGE, ...(kinds.value.length ? { kind: kinds.value.join(',') } : {}) })),
   })
   watch(() => first.data.value, () => {
     older.value = []

@@ -1,5 +1,7 @@
 import { existsSync, readdirSync } from 'node:fs'
 import { join, resolve } from 'node:path'
+import type { FileStorage } from '../../server/storage/file-storage'
+import { s3Storage } from '../../server/storage/s3-storage'
 
 export const MANIFEST_VERSION = 1
 /** The folders of NUXT_STORAGE_DIR that hold the app's files (the rest may be databases, logs, backups). */
@@ -10,7 +12,27 @@ export interface BackupManifest {
   createdAt: string
   database: { file: string, bytes: number, sha256: string }
   files: { path: string, bytes: number, sha256: string }[]
+  /** Where the files came from: paths in a folder (`photos/…`, `uploads/…`) or keys in a bucket. Absent: 'local'. */
+  store?: 'local' | 's3'
 }
+
+/** The bucket when NUXT_STORAGE_S3_BUCKET is set (the same variables as the app), else null: the storage folder. */
+export function bucketFromEnv(): FileStorage | null {
+  const bucket = process.env.NUXT_STORAGE_S3_BUCKET
+  if (!bucket) return null
+  const pathStyle = process.env.NUXT_STORAGE_S3_FORCE_PATH_STYLE
+  return s3Storage({
+    bucket,
+    endpoint: process.env.NUXT_STORAGE_S3_ENDPOINT || undefined,
+    region: process.env.NUXT_STORAGE_S3_REGION || undefined,
+    accessKeyId: process.env.NUXT_STORAGE_S3_ACCESS_KEY_ID || undefined,
+    secretAccessKey: process.env.NUXT_STORAGE_S3_SECRET_ACCESS_KEY || undefined,
+    forcePathStyle: pathStyle ? pathStyle === 'true' : undefined,
+  })
+}
+
+/** A bucket's keys that are the app's files (the health check's probes are not). */
+export const isAppObject = (key: string) => !key.startsWith('.write-probe-') && !key.endsWith('/')
 
 /** NUXT_DATABASE_URL as the app reads it; without it, the database `npm start` runs (scripts/start.sh). */
 export function databaseUrlFromEnv() {

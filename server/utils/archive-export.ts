@@ -1,10 +1,10 @@
 import { createHash } from 'node:crypto'
-import { readFile, stat } from 'node:fs/promises'
 import { Readable, type Writable } from 'node:stream'
 import { ZipFile } from 'yazl'
 import { ARCHIVE_FORMAT, ARCHIVE_LIMITS, ARCHIVE_SCHEMA_VERSION, type ArchiveManifest, type ArchiveRecord, type DataFile, type MissingPhoto } from '#shared/utils/archive-schema'
 import { addCsvFiles, type ArchiveIndex } from './archive-csv-files'
 import { withoutLocation } from './photo-location'
+import { originalKey } from '../storage/file-storage'
 
 const BATCH = 500
 const EXTENSIONS: Record<string, string> = { 'image/jpeg': 'jpg', 'image/png': 'png', 'image/webp': 'webp' }
@@ -148,10 +148,6 @@ const fileOf = (photo: PhotoRow) => `photos/${photo.id}.${EXTENSIONS[photo.mime]
 /** The bytes that go into the archive for a photo, and their checksum for its record. */
 interface ExportedPhoto { sha256: string, bytes: number }
 
-async function isFile(path: string) {
-  return stat(path).then(s => s.isFile(), () => false)
-}
-
 async function* photoRecords(pondId: string, exported: ReadonlyMap<string, ExportedPhoto>): AsyncGenerator<ArchiveRecord<'photos'>> {
   for await (const rows of batches(photosQuery, [pondId])) {
     for (const p of rows as unknown as PhotoRow[]) {
@@ -182,14 +178,14 @@ async function addPhotos(zip: ZipFile, pondId: string, options: ArchiveOptions) 
   const missing: MissingPhoto[] = []
   for await (const rows of batches(photosQuery, [pondId])) {
     for (const photo of rows as unknown as PhotoRow[]) {
-      const path = originalPath(photo.id)
-      if (!(await isFile(path))) {
+      const key = originalKey(photo.id)
+      if (!(await useFileStorage().stat(key))) {
         missing.push({ id: photo.id, fishId: photo.fish_id, originalName: photo.original_name, note: MISSING_PHOTO_NOTE })
         continue
       }
       // Originals are already compressed; storing them saves time and keeps the entry sizes honest.
       zip.addReadStreamLazy(fileOf(photo), { compress: false }, (done) => {
-        readFile(path)
+        useFileStorage().readBuffer(key)
           .then(bytes => (options.keepLocation ? bytes : withoutLocation(bytes, photo.mime)))
           .then((bytes) => {
             exported.set(photo.id, { sha256: createHash('sha256').update(bytes).digest('hex'), bytes: bytes.length })

@@ -1,13 +1,10 @@
 import { randomBytes, randomUUID } from 'node:crypto'
-import { createWriteStream } from 'node:fs'
-import { mkdir, rm } from 'node:fs/promises'
-import { dirname } from 'node:path'
-import { pipeline } from 'node:stream/promises'
 import { eq, sql } from 'drizzle-orm'
 import type { DataFile } from '#shared/utils/archive-schema'
 import { archiveRecords, type OpenedArchive, type RecordOf } from '../workers/archive-read'
 import { entryStream } from '../workers/zip-reader'
 import { upgradeLegacyEntries } from '../db/upgrade-entries'
+import { originalKey } from '../storage/file-storage'
 
 const BATCH = 500
 
@@ -86,10 +83,12 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
 
       for await (const photo of records(archive, 'photos')) {
         const id = photoIds.get(photo.id)
-        const target = originalPath(id)
-        await mkdir(dirname(target), { recursive: true })
+        const target = originalKey(id)
         copied.push(target)
-        await pipeline(await entryStream(archive.zip, archive.byName.get(photo.file)!), createWriteStream(target))
+        // Whole, then stored: an archive's photo is at most an upload's size.
+        const chunks: Buffer[] = []
+        for await (const chunk of await entryStream(archive.zip, archive.byName.get(photo.file)!)) chunks.push(chunk as Buffer)
+        await useFileStorage().put(target, Buffer.concat(chunks))
         const uploadId = randomBytes(16).toString('hex')
         uploadIds.push(uploadId)
         await tx.insert(schema.photos).values({
@@ -143,7 +142,7 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
     return pondId
   }
   catch (error) {
-    await Promise.all(copied.map(path => rm(path, { force: true })))
+    await Promise.all(copied.map(key => useFileStorage().remove(key).catch(() => undefined)))
     throw error
   }
 }

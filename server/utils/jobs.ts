@@ -148,5 +148,7 @@ export async function stopJobs() {
   const instance = boss
   boss = undefined
   starting = undefined
-  await instance?.stop({ graceful: true, timeout: 5000, wait: true })
+  // pg-boss waits at least 1 s; a job still running then is failed back to the queue ("retry") for another instance.
+  const grace = Number(useRuntimeConfig().jobsStopGraceSeconds)
+  await instance?.stop({ graceful: true, timeout: Number.isFinite(grace) ? grace * 1000 : 5000, wait: true })
 }

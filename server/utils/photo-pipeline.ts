@@ -1,6 +1,4 @@
-import { randomBytes } from 'node:crypto'
-import { copyFile, link, mkdir, rename, rm, stat } from 'node:fs/promises'
-import { dirname } from 'node:path'
+import { rm } from 'node:fs/promises'
 import { and, desc, eq, isNull, sql } from 'drizzle-orm'
 import pLimit from 'p-limit'
 import { PHOTO_PROCESSING_CONCURRENCY } from '#shared/utils/photo-limits'
@@ -8,7 +6,7 @@ import type { PhotoRow } from '#shared/types/rows'
 import { makeDerived, readPhotoHeader } from './photo-derive'
 import { perProcessShare } from './process-share'
 import { PhotoRejection, sha256OfFile, sniffPhotoType } from './photo-files'
-import { derivedDir, originalPath, uploadPath } from './photo-storage'
+import { derivedPrefix, originalKey, type LocalCopy } from '../storage/file-storage'
 
 // Whole photo jobs (sniff, hash, decode, encode) run at most this many at once on the machine (split
 // between the server processes when it runs one per core).
@@ -44,39 +42,29 @@ export function runPhotoJob<T>(uploadId: string, work: () => Promise<T>) {
   return photoJobs(() => withUploadLock(uploadId, work))
 }
 
-async function exists(path: string) {
-  return stat(path).then(() => true, () => false)
-}
-
-/** The bytes tus stored, and its .json beside them. */
+/** The bytes tus stored, and its info beside them. */
 export async function discardUpload(uploadId: string) {
-  await rm(uploadPath(uploadId), { force: true })
-  await rm(`${uploadPath(uploadId)}.json`, { force: true })
+  const storage = useFileStorage()
+  await storage.remove(storage.uploadKey(uploadId))
+  await storage.remove(storage.uploadInfoKey(uploadId))
+  // @tus/s3-store's piece of a part smaller than the minimum, left when an upload was given up half-way.
+  if (storage.kind === 's3') await storage.remove(`${uploadId}.part`)
 }
 
 /**
- * The original is a second name for the upload's bytes (no copy of 40 MB): tus keeps answering
- * HEAD with "complete" until the upload expires, so a client whose last answer was lost does not
- * send the photo again.
+ * The original is a second name for the upload's bytes (a hard link in a folder, a server-side copy in a
+ * bucket): tus keeps answering HEAD with "complete" until the upload expires, so a client whose last answer
+ * was lost does not send the photo again.
  */
 async function keepOriginal(uploadId: string, photoId: string) {
-  const target = originalPath(photoId)
-  await mkdir(dirname(target), { recursive: true })
-  try {
-    await link(uploadPath(uploadId), target)
-  }
-  catch (error) {
-    const code = (error as NodeJS.ErrnoException).code
-    if (code === 'EEXIST') return
-    if (code !== 'EXDEV' && code !== 'EPERM' && code !== 'ENOTSUP') throw error
-    await copyFile(uploadPath(uploadId), `${target}.partial`)
-    await rename(`${target}.partial`, target)
-  }
+  const storage = useFileStorage()
+  await storage.copy(storage.uploadKey(uploadId), originalKey(photoId))
 }
 
 export async function deletePhotoFiles(photo: Pick<PhotoRow, 'id' | 'uploadId'>) {
-  await rm(derivedDir(photo.id), { recursive: true, force: true })
-  await rm(originalPath(photo.id), { force: true })
+  const storage = useFileStorage()
+  await storage.removePrefix(derivedPrefix(photo.id))
+  await storage.remove(originalKey(photo.id))
   await discardUpload(photo.uploadId)
 }
 
@@ -101,18 +89,25 @@ async function offerAsProfile(photo: PhotoRow) {
 
 /** Makes the derived copies of a stored photo. The caller holds the upload's lock. */
 async function processPhoto(photo: PhotoRow, options: { retryOnStorageFault?: boolean } = {}): Promise<PhotoRow> {
-  const finalDir = derivedDir(photo.id)
-  const workDir = `${finalDir}.tmp-${randomBytes(6).toString('hex')}`
+  const storage = useFileStorage()
+  let workDir: string | undefined
   try {
-    if (!(await exists(originalPath(photo.id)))) {
+    if (!(await storage.stat(originalKey(photo.id)))) {
       // The process stopped between the row and the link, or the link could not be written: the upload's bytes are still there.
-      if (await exists(uploadPath(photo.uploadId))) await keepOriginal(photo.uploadId, photo.id)
+      if (await storage.stat(storage.uploadKey(photo.uploadId))) await keepOriginal(photo.uploadId, photo.id)
       else throw new PhotoRejection(410, 'The uploaded file was lost before it could be processed. Upload the photo again.')
     }
-    const variants = await makeDerived(originalPath(photo.id), workDir)
-    // Appears whole or not at all: readers never see half a set of sizes.
-    await rm(finalDir, { recursive: true, force: true })
-    await rename(workDir, finalDir)
+    workDir = await storage.workFolder(derivedPrefix(photo.id))
+    const original = await storage.localCopy(originalKey(photo.id))
+    let variants
+    try {
+      variants = await makeDerived(original.path, workDir)
+    }
+    finally {
+      await original.release()
+    }
+    // Readers never see half a set of sizes: the row names the sizes only after all of them are stored.
+    await storage.replaceFolder(derivedPrefix(photo.id), workDir)
     const [ready] = await useDb().update(schema.photos)
       .set({ state: 'ready', failureReason: null, variants, updatedAt: new Date() })
       .where(eq(schema.photos.id, photo.id)).returning()
@@ -125,7 +120,7 @@ async function processPhoto(photo: PhotoRow, options: { retryOnStorageFault?: bo
   }
   catch (error) {
     // Cleaning up must not hide why it failed (the folder may be the very thing that is broken).
-    await rm(workDir, { recursive: true, force: true }).catch(() => undefined)
+    if (workDir) await rm(workDir, { recursive: true, force: true }).catch(() => undefined)
     if (error instanceof PhotoRejection) {
       await dropPhoto(photo)
       throw error
@@ -185,9 +180,13 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
     const existing = await photoByUpload(uploadId)
     if (existing) return { photo: existing.state === 'pending' ? await processPhoto(existing) : existing, duplicate: false }
 
-    const bytesPath = uploadPath(uploadId)
+    const storage = useFileStorage()
     let row: PhotoRow | undefined
+    let bytes: LocalCopy | undefined
     try {
+      // A path for file-type and sharp: the file itself in a folder, a temporary copy from a bucket.
+      bytes = await storage.localCopy(storage.uploadKey(uploadId))
+      const bytesPath = bytes.path
       const mime = await sniffPhotoType(bytesPath, upload.size)
       const header = await readPhotoHeader(bytesPath)
       const sha256 = await sha256OfFile(bytesPath)
@@ -230,6 +229,9 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
         if (!row) await discardUpload(uploadId)
       }
       throw error
+    }
+    finally {
+      await bytes?.release()
     }
   })
 }

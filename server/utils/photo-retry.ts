@@ -12,8 +12,11 @@ export async function scheduleAutomaticRetry(photoId: string) {
 /** The job: a failed photo is processed again; still failing throws, so pg-boss tries later. */
 export async function retryFailedPhoto(data: { photoId: string }) {
   const [photo] = await useDb().select().from(schema.photos).where(eq(schema.photos.id, data.photoId))
-  if (!photo || photo.state !== 'failed' || photo.removedAt) return
-  const outcome = await retryPhoto(photo, { retryOnStorageFault: false })
+  if (!photo || photo.removedAt || (photo.state !== 'failed' && photo.state !== 'pending')) return
+  // Pending: an earlier run of this job was cut off (its instance stopped after marking the photo), and the
+  // statement it had sent may even have completed after it was gone. Finished here, or later if still held.
+  const outcome = photo.state === 'pending' ? await resumePendingPhoto(photo.uploadId) : await retryPhoto(photo, { retryOnStorageFault: false })
+  if (!outcome) return
   if (outcome === BUSY) throw new Error('photo is being processed elsewhere; trying later')
   if (outcome.state === 'failed') throw new Error(outcome.failureReason ?? 'still failing')
 }

@@ -1,34 +1,14 @@
 import { resolve, join } from 'node:path'
 
-// Where photo bytes live. Nothing here is under public/: every byte leaves through an authorised route.
+// Where photo bytes live when no bucket is configured (see file-storage.ts). Nothing here is under public/:
+// every byte leaves through an authorised route.
 export function storageRoot() {
   return resolve(String(useRuntimeConfig().storageDir || '') || join(process.cwd(), 'storage'))
 }
 
-/** tus writes here: `<uploadId>` (the bytes) and `<uploadId>.json` (size, metadata, creation date). */
+/** tus's file store writes here: `<uploadId>` (the bytes) and `<uploadId>.json` (size, metadata, creation date). */
 export function uploadsDir() {
   return join(storageRoot(), 'uploads')
-}
-
-/** The photo as uploaded, GPS and all: kept for reprocessing, never served. */
-export function originalsDir() {
-  return join(storageRoot(), 'photos', 'originals')
-}
-
-export function derivedRoot() {
-  return join(storageRoot(), 'photos', 'derived')
-}
-
-export function originalPath(photoId: string) {
-  return join(originalsDir(), photoId)
-}
-
-export function derivedDir(photoId: string) {
-  return join(derivedRoot(), photoId)
-}
-
-export function uploadPath(uploadId: string) {
-  return join(uploadsDir(), uploadId)
 }
 
 /** tus ids are 32 hex characters (crypto.randomBytes(16)); anything else never names a stored upload. */

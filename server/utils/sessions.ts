@@ -5,6 +5,8 @@ import type { CurrentUser } from '#shared/types'
 declare module 'h3' {
   interface H3EventContext {
     auth?: { sessionId: string, user: CurrentUser }
+    /** The Cookie header `auth` was read from (server/middleware/02.session.ts). */
+    authCookie?: string
   }
 }
 

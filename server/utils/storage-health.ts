@@ -1,24 +1,11 @@
-import { randomUUID } from 'node:crypto'
-import { mkdir, unlink, writeFile } from 'node:fs/promises'
-import { join } from 'node:path'
-
-/** Writes and removes a small file: the only check that also holds for root and for full or read-only disks. */
-export async function storageWritable(): Promise<boolean> {
-  const probe = join(storageRoot(), `.write-probe-${randomUUID()}`)
-  try {
-    await mkdir(storageRoot(), { recursive: true })
-    await writeFile(probe, 'ok')
-    await unlink(probe)
-    return true
-  }
-  catch {
-    await unlink(probe).catch(() => {})
-    return false
-  }
+/** Writes and removes a small object: the only check that also holds for root, full disks and read-only buckets. */
+export function storageWritable(): Promise<boolean> {
+  return useFileStorage().writable()
 }
 
-// File-system errors that say "the storage cannot be written" rather than "this file is bad".
-const STORAGE_FAULT_CODES = new Set(['EACCES', 'EPERM', 'EROFS', 'ENOSPC', 'EDQUOT', 'ENOTDIR', 'EEXIST', 'EIO'])
+// File-system errors that say "the storage cannot be written" rather than "this file is bad"; ESTORAGE is an
+// object store that could not be reached or refused the request (server/storage/s3-storage.ts).
+const STORAGE_FAULT_CODES = new Set(['EACCES', 'EPERM', 'EROFS', 'ENOSPC', 'EDQUOT', 'ENOTDIR', 'EEXIST', 'EIO', 'ESTORAGE'])
 
 export function isStorageFault(error: unknown): boolean {
   const code = (error as NodeJS.ErrnoException)?.code
@@ -27,5 +14,6 @@ export function isStorageFault(error: unknown): boolean {
 
 export function storageUnavailableMessage(error: unknown) {
   const code = (error as NodeJS.ErrnoException)?.code ?? 'unknown'
-  return `The server cannot store files right now: its storage folder is not writable (${code}). Nothing was saved; try again later, and tell the administrator if it lasts.`
+  const what = code === 'ESTORAGE' ? 'its object store cannot be reached' : `its storage folder is not writable (${code})`
+  return `The server cannot store files right now: ${what}. Nothing was saved; try again later, and tell the administrator if it lasts.`
 }

@@ -1,7 +1,8 @@
 import { mkdirSync } from 'node:fs'
 import type { IncomingMessage } from 'node:http'
 import { FileStore } from '@tus/file-store'
-import { Server } from '@tus/server'
+import { S3Store } from '@tus/s3-store'
+import { Server, type DataStore } from '@tus/server'
 import type { H3Event } from 'h3'
 import { joinURL } from 'ufo'
 import { MAX_UPLOAD_BYTES, UPLOAD_EXPIRY_HOURS } from '#shared/utils/photo-limits'
@@ -10,6 +11,7 @@ import { PHOTO_ADD_ROLES } from './photo-access'
 import { PhotoRejection } from './photo-files'
 import { finishUpload } from './photo-pipeline'
 import { UPLOAD_ID_PATTERN, uploadsDir } from './photo-storage'
+import { s3ClientConfig } from '../storage/s3-storage'
 import { PostgresLocker } from './tus-locker'
 
 /** What a tus hook throws to answer the client: @tus/server sends `status_code` and `body` as they are. */
@@ -37,6 +39,11 @@ function toTusResponse(error: unknown): TusResponse | { status_code: number, bod
     console.error('[uploads] storage not writable:', (error as Error).message)
     return new TusResponse(503, `${storageUnavailableMessage(error)}\n`)
   }
+  // @tus/s3-store's own calls to the bucket fail with the SDK's errors, which carry the HTTP status they got.
+  if ((error as { $metadata?: unknown })?.$metadata !== undefined || (error as { name?: string })?.name === 'TimeoutError') {
+    console.error('[uploads] object store failed:', (error as Error).message)
+    return new TusResponse(503, `${storageUnavailableMessage({ code: 'ESTORAGE' })}\n`)
+  }
   if (isDatabaseUnavailable(error)) return new TusResponse(503, 'The records cannot be reached just now; the bytes already sent are kept. Try again in a few seconds.\n')
   if (isError(error)) return new TusResponse(error.statusCode, `${error.message || error.statusMessage}\n`)
   const tusError = error as { status_code?: number, body?: string }
@@ -56,8 +63,23 @@ async function guard<T>(work: () => Promise<T>): Promise<T> {
 
 let tus: Server | undefined
 
-export function useTusServer(): Server {
-  if (tus) return tus
+/** @tus/s3-store 2.0.7 leaves the piece smaller than a part (`<id>.part`) behind when an upload is given up. */
+class UploadBucket extends S3Store {
+  override async remove(id: string) {
+    await super.remove(id)
+    await useFileStorage().remove(`${id}.part`)
+  }
+}
+
+/** Where tus keeps uploads in progress: the bucket (as multipart uploads) or the storage folder. */
+function uploadStore(): DataStore {
+  const expirationPeriodInMilliseconds = UPLOAD_EXPIRY_HOURS * 3600_000
+  const s3 = s3Settings()
+  if (s3) {
+    // No cache of upload info in this process's memory (its default): another instance may have moved the upload on.
+    const noCache = { get: async () => undefined, set: async () => {}, delete: async () => {}, list: async () => [] }
+    return new UploadBucket({ s3ClientConfig: { bucket: s3.bucket, ...s3ClientConfig(s3) }, expirationPeriodInMilliseconds, partSize: 8 * 1024 * 1024, useTags: false, cache: noCache })
+  }
   // @tus/file-store creates its folder in a callback that throws, which would end the process: make it here first.
   try {
     mkdirSync(uploadsDir(), { recursive: true })
@@ -65,13 +87,18 @@ export function useTusServer(): Server {
   catch (error) {
     throw createError({ statusCode: 503, statusMessage: 'Storage not writable', message: storageUnavailableMessage(error) })
   }
+  return new FileStore({ directory: uploadsDir(), expirationPeriodInMilliseconds })
+}
+
+export function useTusServer(): Server {
+  if (tus) return tus
   const config = useRuntimeConfig()
   const origins = new Set(String(config.appOrigin || '').split(',').map(s => s.trim()).filter(Boolean))
-  const store = new FileStore({ directory: uploadsDir(), expirationPeriodInMilliseconds: UPLOAD_EXPIRY_HOURS * 3600_000 })
+  const store = uploadStore()
   tus = new Server({
     path: joinURL(config.app.baseURL, '/api/uploads'),
     datastore: store,
-    // Instances share the storage folder: an upload is locked in PostgreSQL, not in one process's memory.
+    // Instances share the storage: an upload is locked in PostgreSQL, not in one process's memory.
     locker: new PostgresLocker(),
     relativeLocation: true,
     maxSize: MAX_UPLOAD_BYTES,

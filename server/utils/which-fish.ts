@@ -7,7 +7,7 @@ import { decodeForFeatures } from '../fish-id/decode'
 import { FEATURES_VERSION, type RgbImage } from '../fish-id/features'
 import type { RankedFish } from '../fish-id/match'
 import type { WorkerRequest, WorkerResponse } from '../fish-id/worker'
-import { derivedDir } from './photo-storage'
+import { derivedKey } from '../storage/file-storage'
 
 export const PHOTO_FEATURES_JOB = 'photo-features'
 
@@ -76,7 +76,7 @@ export async function computePhotoFeatures(photoId: string) {
   const [photo] = await useDb().select().from(schema.photos).where(eq(schema.photos.id, photoId)).limit(1)
   if (!photo || photo.state !== 'ready' || photo.removedAt) return null
   // The 1024 px copy: made by the pipeline already, and plenty for a 480 px feature picture.
-  const image = await decodeForFeatures(join(derivedDir(photo.id), '1024.jpg'))
+  const image = await decodeForFeatures(await useFileStorage().readBuffer(derivedKey(photo.id, '1024.jpg')))
   const response = await ask({ kind: 'extract', image })
   if (!response.ok) {
     if (response.noFish) return null

@@ -57,13 +57,18 @@ export function parseDecimal(text: string, decimalMark: DecimalMark): number | n
   return reading.ok ? reading.value : null
 }
 
+// One formatter per precision: building one costs far more than using it.
+const decimalFormats = new Map<number, Intl.NumberFormat>()
+
 /**
  * A number written back the way the person reads numbers: "1,250" / "12.5" with a point,
  * "1.250" / "12,5" with a comma. Thousands are grouped in threes, as the parser accepts them.
  */
 export function formatDecimal(value: number, decimalMark: DecimalMark, maximumFractionDigits = 3): string {
   if (!Number.isFinite(value)) return ''
-  const pointText = new Intl.NumberFormat('en-US', { maximumFractionDigits, useGrouping: true }).format(value)
+  let format = decimalFormats.get(maximumFractionDigits)
+  if (!format) decimalFormats.set(maximumFractionDigits, format = new Intl.NumberFormat('en-US', { maximumFractionDigits, useGrouping: true }))
+  const pointText = format.format(value)
   if (decimalMark === 'point') return pointText
   return pointText.replace(/[.,]/g, symbol => (symbol === '.' ? ',' : '.'))
 }

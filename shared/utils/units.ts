@@ -96,12 +96,14 @@ export function convert(value: number, from: string, to: string): number {
 // Shown instead of a number when there is none to show.
 const NO_VALUE = '—'
 
+// Building an Intl.NumberFormat costs far more than formatting with one (a page of weighings made hundreds).
+const numberFormats = new Map<number, Intl.NumberFormat>()
+
 // Written in the reader's decimal style: "1,250.5" with a point, "1.250,5" with a comma.
 function formatNumber(value: number, fractionDigits: number, mark: DecimalMark = 'point'): string {
-  const text = new Intl.NumberFormat('en-US', {
-    minimumFractionDigits: fractionDigits,
-    maximumFractionDigits: fractionDigits,
-  }).format(value)
+  let format = numberFormats.get(fractionDigits)
+  if (!format) numberFormats.set(fractionDigits, format = new Intl.NumberFormat('en-US', { minimumFractionDigits: fractionDigits, maximumFractionDigits: fractionDigits }))
+  const text = format.format(value)
   return mark === 'point' ? text : text.replace(/[.,]/g, symbol => (symbol === '.' ? ',' : '.'))
 }
 

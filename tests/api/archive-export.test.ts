@@ -1,13 +1,12 @@
-import { rm } from 'node:fs/promises'
-import { join } from 'node:path'
 import exifr from 'exifr'
 import Papa from 'papaparse'
 import sharp from 'sharp'
 import { beforeAll, describe, expect, it } from 'vitest'
 import type { ApiClient } from '../support/client'
-import { MAIN_URL, testEnv } from '../support/env'
+import { MAIN_URL } from '../support/env'
 import { addMember, createFish, createPond, signedInUser, testMicrochip } from '../support/factories'
 import { makeJpeg, tusUpload } from '../support/photos'
+import { testStorage } from '../support/stored-files'
 import { readZip, writeZip, type ZipContents } from '../support/zip'
 
 // Names a spreadsheet would run as formulas if written plainly (OWASP "CSV Injection").
@@ -151,7 +150,7 @@ describe('a ready photo whose original is gone', () => {
     const kept = await uploadPhoto(owner.client, fish.id, await makeJpeg({ width: 400, height: 300, sigma: 10 }), 'kept.jpg')
     const lost = await uploadPhoto(owner.client, fish.id, await makeJpeg({ width: 400, height: 300, sigma: 30 }), 'lost.jpg')
     expect((await owner.client.post(`/api/fish/${fish.id}/profile-photo`, { photoId: lost })).status).toBe(200)
-    await rm(join(testEnv().storageDir, 'photos', 'originals', lost))
+    await testStorage().remove(`photos/originals/${lost}`)
 
     const contents = await exportPond(owner.client, pond.id)
     const manifest = JSON.parse(contents.get('manifest.json')!.toString())

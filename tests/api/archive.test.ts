@@ -1,5 +1,4 @@
 import { spawnSync } from 'node:child_process'
-import { readdirSync } from 'node:fs'
 import { createHash } from 'node:crypto'
 import { join } from 'node:path'
 import pg from 'pg'
@@ -10,11 +9,12 @@ import { MAIN_PORT, MAIN_URL, ROOT, testEnv } from '../support/env'
 import { addMember, createFish, createPond, signedInUser, testMicrochip } from '../support/factories'
 import { makeJpeg, tusUpload } from '../support/photos'
 import { startServer, type RunningServer } from '../support/server'
+import { otherStorage, storedNames } from '../support/stored-files'
 import { declareSize, readZip, renameEntry, writeZip, type ZipContents } from '../support/zip'
 
 // A second Fintrail: its own database in the test cluster and its own storage folder.
 const OTHER_DB = 'fintrail_test_other'
-const otherStorage = join(testEnv().storageDir, '..', 'test-other')
+const otherStore = otherStorage(join(testEnv().storageDir, '..', 'test-other'))
 let other: RunningServer
 let source: Awaited<ReturnType<typeof buildSourcePond>>
 let archive: Buffer
@@ -105,7 +105,7 @@ beforeAll(async () => {
   const otherUrl = testEnv().databaseUrl.replace(/\/[^/]+$/, `/${OTHER_DB}`)
   const migrated = spawnSync(join(ROOT, 'node_modules/.bin/tsx'), ['scripts/migrate.ts'], { cwd: ROOT, env: { ...process.env, DATABASE_URL: otherUrl }, encoding: 'utf8' })
   expect(migrated.status, migrated.stderr).toBe(0)
-  other = await startServer(MAIN_PORT + 18, { NUXT_DATABASE_URL: otherUrl, NUXT_STORAGE_DIR: otherStorage })
+  other = await startServer(MAIN_PORT + 18, { NUXT_DATABASE_URL: otherUrl, ...otherStore.env })
   source = await buildSourcePond()
   const response = await fetch(`${MAIN_URL}/api/ponds/${source.pond.id}/export`, { headers: { cookie: source.owner.client.cookieHeader() } })
   expect(response.status).toBe(200)
@@ -216,12 +216,12 @@ describe('pond archive import', () => {
     await client.post('/api/auth/sign-up', { name: 'Hostile Test', email, password })
     const otherUrl = testEnv().databaseUrl.replace(/\/[^/]+$/, `/${OTHER_DB}`)
     const before = await countRows(otherUrl)
-    const originalsBefore = readdirSafe(join(otherStorage, 'photos', 'originals'))
+    const originalsBefore = await storedNames('photos/originals/', otherStore.storage)
     const result = await importInto(other, client, await make())
     expect(result.status, JSON.stringify(result.body)).toBe(status)
     expect(result.body.message).toMatch(message)
     expect(await countRows(otherUrl)).toEqual(before)
-    expect(readdirSafe(join(otherStorage, 'photos', 'originals'))).toEqual(originalsBefore)
+    expect(await storedNames('photos/originals/', otherStore.storage)).toEqual(originalsBefore)
     expect((await fetch(`${other.url}/api/health`)).status).toBe(200)
   })
 
@@ -231,12 +231,3 @@ describe('pond archive import', () => {
     expect(result.body.message).toMatch(/microchip/)
   })
 })
-
-function readdirSafe(path: string) {
-  try {
-    return readdirSync(path).sort()
-  }
-  catch {
-    return []
-  }
-}

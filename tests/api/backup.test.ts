@@ -6,10 +6,12 @@ import { join, relative } from 'node:path'
 import { promisify } from 'node:util'
 import pg from 'pg'
 import { afterAll, describe, expect, it } from 'vitest'
+import { ApiClient } from '../support/client'
+import { destroyCluster, startCluster } from '../support/cluster'
 import { closeTestDb, testDb } from '../support/db'
 import { MAIN_PORT, ROOT, testEnv } from '../support/env'
-import { createFish, createPond, signedInUser } from '../support/factories'
-import { fileSha256, makeJpeg, tusUpload } from '../support/photos'
+import { TEST_PASSWORD, createFish, createPond, signedInUser } from '../support/factories'
+import { fileSha256, makeJpeg, sha256, tusUpload } from '../support/photos'
 import { startServer, type RunningServer } from '../support/server'
 import { addEntry, sampleEntries } from '../support/timeline'
 
@@ -105,4 +107,79 @@ describe('backup and restore', () => {
     // A second restore into the now-filled targets is refused rather than mixed in.
     await expect(run(join(ROOT, 'node_modules/.bin/tsx'), ['scripts/restore.ts', backupFile], { cwd: ROOT, env: { ...env, NUXT_DATABASE_URL: restoredUrl(), NUXT_STORAGE_DIR: restoredStorage } })).rejects.toThrow(/not empty/)
   }, 180_000) // two script runs and a server start; slow on a busy machine
+
+  it('restores into a destroyed and recreated cluster and storage: every record and photo is there, served byte for byte', async () => {
+    // A cluster of its own, so it can be destroyed: made by the same functions as the test and demo clusters.
+    const cluster = 'backup-test'
+    const pgPort = MAIN_PORT + 8
+    const url = `postgres://fintrail@127.0.0.1:${pgPort}/fintrail`
+    const storageDir = join(scratch, 'cluster-storage')
+    const env = { ...process.env, NUXT_DATABASE_URL: url, DATABASE_URL: url, NUXT_STORAGE_DIR: storageDir }
+    const serverEnv = { NUXT_DATABASE_URL: url, NUXT_STORAGE_DIR: storageDir, NUXT_JOBS_SCHEMA: 'pgboss' }
+    const tsx = join(ROOT, 'node_modules/.bin/tsx')
+    await destroyCluster(cluster)
+    const dataDir = await startCluster(cluster, pgPort, 'fintrail')
+    try {
+      await run(tsx, ['scripts/migrate.ts'], { cwd: ROOT, env })
+      let live = await startServer(MAIN_PORT + 12, serverEnv)
+      const client = new ApiClient(live.url)
+      const email = `restored-${randomUUID()}@example.test`
+      const password = TEST_PASSWORD
+      expect((await client.post('/api/auth/sign-up', { name: 'Restored Person', email, password })).status).toBe(201)
+      const pond = await createPond(client)
+      const fish = await createFish(client, pond.id)
+      const samples = sampleEntries(fish.id)
+      for (const entry of [samples.measurement, samples.observation]) await addEntry(client, fish.id, entry)
+      const photo = await makeJpeg({ width: 900, height: 700 })
+      const upload = await tusUpload(live.url, client, photo, { metadata: { fishId: fish.id, filename: 'survivor.jpg', view: 'top' } }).done
+      expect(upload.headers['photo-state']).toBe('ready')
+      const photoId = upload.headers['photo-id']!
+      const servedBefore = Buffer.from(await (await fetch(`${live.url}/api/photos/${photoId}/1024.jpg`, { headers: { cookie: client.cookieHeader() } })).arrayBuffer())
+      const before = await recordsAt(url)
+
+      const backupFile = join(scratch, 'cluster.tar')
+      await run(tsx, ['scripts/backup.ts', backupFile], { cwd: ROOT, env })
+      await live.stop()
+
+      // The machine is lost: the cluster's data folder and the storage folder are gone.
+      await destroyCluster(cluster)
+      rmSync(storageDir, { recursive: true, force: true })
+      expect(existsSync(dataDir)).toBe(false)
+
+      // A new cluster in the same place (initdb again), an empty database, then the restore and a start.
+      await startCluster(cluster, pgPort, 'fintrail')
+      await run(tsx, ['scripts/restore.ts', backupFile], { cwd: ROOT, env })
+      expect(await recordsAt(url)).toEqual(before)
+      live = await startServer(MAIN_PORT + 12, serverEnv)
+      try {
+        const again = new ApiClient(live.url)
+        expect((await again.post('/api/auth/sign-in', { email, password })).status).toBe(200)
+        expect((await again.get(`/api/ponds/${pond.id}`)).status).toBe(200)
+        const timeline = await again.get(`/api/fish/${fish.id}/timeline`)
+        expect(timeline.status).toBe(200)
+        expect(JSON.stringify(timeline.body)).toContain('measurement')
+        const servedAfter = await fetch(`${live.url}/api/photos/${photoId}/1024.jpg`, { headers: { cookie: again.cookieHeader() } })
+        expect(servedAfter.status).toBe(200)
+        expect(Buffer.from(await servedAfter.arrayBuffer()).equals(servedBefore)).toBe(true)
+        expect(fileSha256(join(storageDir, 'photos', 'originals', photoId))).toBe(sha256(photo))
+      }
+      finally {
+        await live.stop()
+      }
+    }
+    finally {
+      await destroyCluster(cluster)
+    }
+  }, 300_000) // two clusters made, migrations, two server starts, two script runs
 })
+
+async function recordsAt(url: string) {
+  const client = new pg.Client({ connectionString: url })
+  await client.connect()
+  try {
+    return await records(client)
+  }
+  finally {
+    await client.end()
+  }
+}

@@ -1,15 +1,13 @@
-import { readdirSync } from 'node:fs'
-import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { ApiClient } from '../support/client'
 import { closeTestDb } from '../support/db'
 import { MAIN_PORT, MAIN_URL } from '../support/env'
 import { TEST_PASSWORD, createFish, createPond, signedInUser } from '../support/factories'
-import { ALL_DERIVED, TUS, createUpload, fileSha256, filesOf, makeJpeg, makeTwentyMegabyteJpeg, photoRows, sha256, storageDirs, tusRequest } from '../support/photos'
+import { ALL_DERIVED, TUS, createUpload, filesOf, makeJpeg, makeTwentyMegabyteJpeg, photoRows, sha256, storedSha256, tusRequest } from '../support/photos'
 import { startServer, type RunningServer } from '../support/server'
 
-// Two built servers on two ports against one database and one storage folder, as behind a load balancer:
-// the main test server and a second one. Nothing a person does may depend on which one answers.
+// Two built servers on two ports against one database and one storage folder (or one bucket, in the
+// object-storage pass), as behind a load balancer: the main test server and a second one. Nothing a person does may depend on which one answers.
 let second: RunningServer
 
 beforeAll(async () => {
@@ -84,8 +82,7 @@ describe('two instances, one database and one storage folder', () => {
     const rows = await photoRows('upload_id = $1', [id])
     expect(rows).toHaveLength(1)
     expect(rows[0]!.sha256).toBe(sha256(photo))
-    const original = readdirSync(storageDirs().originals).find(name => name.startsWith(rows[0]!.id))!
-    expect(fileSha256(join(storageDirs().originals, original))).toBe(sha256(photo))
+    expect(await storedSha256(`photos/originals/${rows[0]!.id}`)).toBe(sha256(photo))
   })
 
   it('a photo whose instance is killed with SIGKILL while deriving it is finished by the other instance', async () => {
@@ -111,7 +108,7 @@ describe('two instances, one database and one storage folder', () => {
       }
       expect(rows).toHaveLength(1)
       expect(rows[0]).toMatchObject({ state: 'ready', sha256: sha256(photo) })
-      expect(filesOf(id, rows[0]!.id).derived).toEqual(ALL_DERIVED)
+      expect((await filesOf(id, rows[0]!.id)).derived).toEqual(ALL_DERIVED)
     }
     finally {
       await doomed.kill()

@@ -1,9 +1,9 @@
-import { readdirSync } from 'node:fs'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { testDb, closeTestDb } from '../support/db'
 import { MAIN_URL } from '../support/env'
 import { createFish, createPond, pondWithRoles, signedInUser } from '../support/factories'
-import { TUS, createUpload, encodeMetadata, makeJpeg, storageDirs, tusRequest } from '../support/photos'
+import { TUS, createUpload, encodeMetadata, makeJpeg, tusRequest } from '../support/photos'
+import { storedNames, storedUploadNames, testStorage } from '../support/stored-files'
 import type { ApiClient } from '../support/client'
 
 // Spec: tus resumable upload protocol 1.0.0, https://tus.io/protocols/resumable-upload
@@ -19,7 +19,7 @@ afterAll(closeTestDb)
 
 const octets = { 'Tus-Resumable': TUS, 'Content-Type': 'application/offset+octet-stream' }
 const metadataFor = (fishId: string) => ({ fishId, filename: 'side.jpg', view: 'left' })
-const uploadsOnDisk = () => readdirSync(storageDirs().uploads).length
+const uploadsOnDisk = async () => (await storedNames(testStorage().uploadsPrefix)).filter(name => /^[0-9a-f]{32}/.test(name)).length
 
 async function newUpload(client: ApiClient = world.owner.client, length = jpeg.length) {
   return createUpload(MAIN_URL, client, length, metadataFor(world.fish.id))
@@ -55,10 +55,10 @@ describe('tus 1.0.0 protocol answers', () => {
     // "The Tus-Resumable header MUST be included in every request and response except for OPTIONS requests";
     // @tus/server answers its absence as it answers an unsupported version: 412 Precondition Failed.
     const { location } = await newUpload()
-    const before = uploadsOnDisk()
+    const before = await uploadsOnDisk()
     const post = await tusRequest(MAIN_URL, world.owner.client, 'POST', '/api/uploads', { 'Upload-Length': '100', 'Upload-Metadata': encodeMetadata(metadataFor(world.fish.id)) })
     expect(post.status).toBe(412)
-    expect(uploadsOnDisk()).toBe(before)
+    expect(await uploadsOnDisk()).toBe(before)
     expect((await tusRequest(MAIN_URL, world.owner.client, 'HEAD', location)).status).toBe(412)
     expect((await tusRequest(MAIN_URL, world.owner.client, 'PATCH', location, { 'Content-Type': 'application/offset+octet-stream', 'Upload-Offset': '0' }, jpeg.subarray(0, 10))).status).toBe(412)
     // "If the Client requests a version which the Server does not support, the Server MUST respond with
@@ -73,11 +73,11 @@ describe('tus 1.0.0 protocol answers', () => {
     const options = await tusRequest(MAIN_URL, null, 'OPTIONS', '/api/uploads')
     expect(options.status).toBe(204)
     expect(options.headers.get('tus-max-size')).toBe(String(40 * 1024 * 1024))
-    const before = uploadsOnDisk()
+    const before = await uploadsOnDisk()
     // "If the length of the upload exceeds the maximum, ... the Server MUST respond with the 413 Request Entity Too Large status."
     const tooLarge = await tusRequest(MAIN_URL, world.owner.client, 'POST', '/api/uploads', { 'Tus-Resumable': TUS, 'Upload-Length': String(40 * 1024 * 1024 + 1), 'Upload-Metadata': encodeMetadata(metadataFor(world.fish.id)) })
     expect(tooLarge.status).toBe(413)
-    expect(uploadsOnDisk()).toBe(before)
+    expect(await uploadsOnDisk()).toBe(before)
     // Bytes beyond the declared length are refused the same way.
     const { location } = await newUpload(world.owner.client, 100)
     const overflow = await tusRequest(MAIN_URL, world.owner.client, 'PATCH', location, { ...octets, 'Upload-Offset': '0' }, Buffer.alloc(101))
@@ -85,7 +85,7 @@ describe('tus 1.0.0 protocol answers', () => {
   })
 
   it('refuses an upload of unknown length and metadata that names no fish, writing nothing', async () => {
-    const before = uploadsOnDisk()
+    const before = await uploadsOnDisk()
     const deferred = await tusRequest(MAIN_URL, world.owner.client, 'POST', '/api/uploads', { 'Tus-Resumable': TUS, 'Upload-Defer-Length': '1', 'Upload-Metadata': encodeMetadata(metadataFor(world.fish.id)) })
     expect(deferred.status).toBe(400)
     expect(deferred.text).toMatch(/Upload-Length/)
@@ -95,7 +95,7 @@ describe('tus 1.0.0 protocol answers', () => {
     const badView = await tusRequest(MAIN_URL, world.owner.client, 'POST', '/api/uploads', { 'Tus-Resumable': TUS, 'Upload-Length': '100', 'Upload-Metadata': encodeMetadata({ ...metadataFor(world.fish.id), view: 'underneath' }) })
     expect(badView.status).toBe(400)
     expect(badView.text).toMatch(/view:/)
-    expect(uploadsOnDisk()).toBe(before)
+    expect(await uploadsOnDisk()).toBe(before)
   })
 
   it('rejects ids that try to leave the upload folder', async () => {
@@ -120,10 +120,10 @@ describe('tus 1.0.0 protocol answers', () => {
 describe('who may create, resume and read uploads', () => {
   it('a signed-out client can do nothing: 401 for every tus method, nothing written', async () => {
     const { location } = await newUpload()
-    const before = uploadsOnDisk()
+    const before = await uploadsOnDisk()
     const create = await tusRequest(MAIN_URL, null, 'POST', '/api/uploads', { 'Tus-Resumable': TUS, 'Upload-Length': '100', 'Upload-Metadata': encodeMetadata(metadataFor(world.fish.id)) })
     expect(create.status).toBe(401)
-    expect(uploadsOnDisk()).toBe(before)
+    expect(await uploadsOnDisk()).toBe(before)
     expect((await tusRequest(MAIN_URL, null, 'HEAD', location, { 'Tus-Resumable': TUS })).status).toBe(401)
     expect((await tusRequest(MAIN_URL, null, 'PATCH', location, { ...octets, 'Upload-Offset': '0' }, jpeg.subarray(0, 100))).status).toBe(401)
     expect((await tusRequest(MAIN_URL, null, 'DELETE', location, { 'Tus-Resumable': TUS })).status).toBe(401)
@@ -134,11 +134,11 @@ describe('who may create, resume and read uploads', () => {
 
   it('a non-member gets 404 for the creation and for someone else\'s upload, and nothing is written', async () => {
     const { location } = await newUpload()
-    const before = uploadsOnDisk()
+    const before = await uploadsOnDisk()
     const outsider = world.outsider.client
     const create = await tusRequest(MAIN_URL, outsider, 'POST', '/api/uploads', { 'Tus-Resumable': TUS, 'Upload-Length': '100', 'Upload-Metadata': encodeMetadata(metadataFor(world.fish.id)) })
     expect(create.status).toBe(404)
-    expect(uploadsOnDisk()).toBe(before)
+    expect(await uploadsOnDisk()).toBe(before)
     expect((await tusRequest(MAIN_URL, outsider, 'HEAD', location, { 'Tus-Resumable': TUS })).status).toBe(404)
     expect((await tusRequest(MAIN_URL, outsider, 'PATCH', location, { ...octets, 'Upload-Offset': '0' }, jpeg.subarray(0, 100))).status).toBe(404)
     expect((await tusRequest(MAIN_URL, outsider, 'DELETE', location, { 'Tus-Resumable': TUS })).status).toBe(404)
@@ -151,10 +151,10 @@ describe('who may create, resume and read uploads', () => {
     const other = await signedInUser({ name: 'Other keeper' })
     const theirPond = await createPond(other.client)
     await createFish(other.client, theirPond.id)
-    const before = uploadsOnDisk()
+    const before = await uploadsOnDisk()
     const attempt = await tusRequest(MAIN_URL, other.client, 'POST', '/api/uploads', { 'Tus-Resumable': TUS, 'Upload-Length': String(jpeg.length), 'Upload-Metadata': encodeMetadata(metadataFor(world.fish.id)) })
     expect(attempt.status).toBe(404)
-    expect(uploadsOnDisk()).toBe(before)
+    expect(await uploadsOnDisk()).toBe(before)
     // Claiming someone else as the uploader does not work either: the server writes who is asking.
     const { location } = await createUpload(MAIN_URL, world.keeper.client, jpeg.length, { ...metadataFor(world.fish.id), uploaderId: world.owner.user.id })
     const head = await tusRequest(MAIN_URL, world.keeper.client, 'HEAD', location, { 'Tus-Resumable': TUS })
@@ -190,8 +190,9 @@ describe('who may create, resume and read uploads', () => {
   it('the uploader may give up an unfinished upload (termination), which removes its bytes', async () => {
     const { location, id } = await newUpload()
     await tusRequest(MAIN_URL, world.owner.client, 'PATCH', location, { ...octets, 'Upload-Offset': '0' }, jpeg.subarray(0, 500))
-    expect(readdirSync(storageDirs().uploads).filter(name => name.startsWith(id))).toHaveLength(2)
+    // Its bytes so far and its info (in a bucket: the info and the piece smaller than a part).
+    expect(await storedUploadNames(id)).toHaveLength(2)
     expect((await tusRequest(MAIN_URL, world.owner.client, 'DELETE', location, { 'Tus-Resumable': TUS })).status).toBe(204)
-    expect(readdirSync(storageDirs().uploads).filter(name => name.startsWith(id))).toHaveLength(0)
+    expect(await storedUploadNames(id)).toHaveLength(0)
   })
 })

@@ -1,11 +1,10 @@
-import { statSync } from 'node:fs'
 import { request } from 'node:http'
-import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { closeTestDb } from '../support/db'
 import { MAIN_PORT, MAIN_URL } from '../support/env'
 import { createFish, pondWithRoles } from '../support/factories'
-import { ALL_DERIVED, TUS, createUpload, fileSha256, filesOf, makeTwentyMegabyteJpeg, photoRows, sha256, storageDirs, strayFiles, tusRequest, tusUpload } from '../support/photos'
+import { ALL_DERIVED, TUS, createUpload, filesOf, finishedUploadNames, makeTwentyMegabyteJpeg, photoRows, sha256, storedSha256, strayFiles, tusRequest, tusUpload } from '../support/photos'
+import { onS3, storedUploadBytes } from '../support/stored-files'
 import { startServer, type RunningServer } from '../support/server'
 
 // A pond side has a weak signal: an upload must survive a dropped connection, a server restart
@@ -81,7 +80,7 @@ async function resumeAndCheck(baseUrl: string, url: string, keptAtLeast = 5 * 10
   expect(rows[0]!.sha256).toBe(sha256(photo))
   expect(rows[0]!.state).toBe('ready')
   expect(result.headers['photo-id']).toBe(rows[0]!.id)
-  expect(fileSha256(join(storageDirs().originals, rows[0]!.id))).toBe(sha256(photo))
+  expect(await storedSha256(`photos/originals/${rows[0]!.id}`)).toBe(sha256(photo))
   return { uploadId, photoId: rows[0]!.id }
 }
 
@@ -90,7 +89,7 @@ describe('resumable upload of a 20 MB photo in 5 MB chunks', () => {
     expect(photo.length).toBeGreaterThan(19_000_000)
     const url = await uploadUntilCut(MAIN_URL, await newFish(), 'dropped.jpg', upload => upload.abort())
     const { uploadId, photoId } = await resumeAndCheck(MAIN_URL, url)
-    expect(filesOf(uploadId, photoId).derived).toEqual(ALL_DERIVED)
+    expect((await filesOf(uploadId, photoId)).derived).toEqual(ALL_DERIVED)
   })
 
   it('resumes after the server process is restarted between the abort and the resume', async () => {
@@ -99,7 +98,7 @@ describe('resumable upload of a 20 MB photo in 5 MB chunks', () => {
     await first.stop()
     const second = await extraServer()
     const { uploadId, photoId } = await resumeAndCheck(second.url, url)
-    expect(filesOf(uploadId, photoId).derived).toEqual(ALL_DERIVED)
+    expect((await filesOf(uploadId, photoId)).derived).toEqual(ALL_DERIVED)
     await second.stop()
   })
 
@@ -109,20 +108,20 @@ describe('resumable upload of a 20 MB photo in 5 MB chunks', () => {
     const { location, id: uploadId } = await createUpload(first.url, world.owner.client, photo.length, metadata(fishId, 'killed.jpg'))
     // The whole photo in one slow PATCH; the server dies while it is writing.
     const patch = slowPatch(first.url, location, 0, photo)
-    const stored = join(storageDirs().uploads, uploadId)
-    await waitFor(() => statSync(stored).size > 1024 * 1024)
+    // In a bucket the first part (8 MB) must be stored: what arrived after it lives in the dead process.
+    await waitFor(async () => (await storedUploadBytes(uploadId)) > 1024 * 1024, onS3 ? 40_000 : 15_000)
     await first.kill()
     expect(first.process.signalCode).toBe('SIGKILL')
     expect(await patch).toHaveProperty('error')
-    const keptOnDisk = statSync(stored).size
+    const keptOnDisk = await storedUploadBytes(uploadId)
     expect(keptOnDisk).toBeLessThan(photo.length / 2)
     const second = await extraServer()
     expect(await serverOffset(second.url, location)).toBe(keptOnDisk)
     const { photoId } = await resumeAndCheck(second.url, new URL(location, second.url).href, 1024 * 1024)
-    const files = filesOf(uploadId, photoId)
+    const files = await filesOf(uploadId, photoId)
     // The finished upload stays (its bytes are the original's second name) so a client that lost the
     // last answer sees "complete" instead of sending 20 MB again.
-    expect(files.upload).toEqual([uploadId, `${uploadId}.json`])
+    expect(files.upload).toEqual(finishedUploadNames(uploadId))
     expect(files.original).toEqual([photoId])
     expect(files.derived).toEqual(ALL_DERIVED)
     expect(files.work).toEqual([])
@@ -132,9 +131,9 @@ describe('resumable upload of a 20 MB photo in 5 MB chunks', () => {
   })
 })
 
-async function waitFor(condition: () => boolean, timeoutMs = 15_000) {
+async function waitFor(condition: () => boolean | Promise<boolean>, timeoutMs = 15_000) {
   const deadline = Date.now() + timeoutMs
-  while (!condition()) {
+  while (!(await condition())) {
     if (Date.now() > deadline) throw new Error('condition not met in time')
     await new Promise(r => setTimeout(r, 20))
   }
@@ -192,6 +191,6 @@ describe('two PATCHes racing on one upload', () => {
     const rows = await photoRows('upload_id = $1', [id])
     expect(rows).toHaveLength(1)
     expect(rows[0]!.sha256).toBe(sha256(photo))
-    expect(fileSha256(join(storageDirs().originals, rows[0]!.id))).toBe(sha256(photo))
+    expect(await storedSha256(`photos/originals/${rows[0]!.id}`)).toBe(sha256(photo))
   })
 })

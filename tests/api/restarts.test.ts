@@ -1,9 +1,13 @@
+import { mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs'
 import { request } from 'node:http'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import pg from 'pg'
 import { afterAll, describe, expect, it } from 'vitest'
 import { closeTestDb, testDb } from '../support/db'
-import { MAIN_PORT } from '../support/env'
+import { MAIN_PORT, testEnv } from '../support/env'
 import { createFish, createPond, signedInUser } from '../support/factories'
-import { TUS, createUpload, makeJpeg } from '../support/photos'
+import { ALL_DERIVED, TUS, createUpload, makeJpeg, photoRows, sha256, tusUpload } from '../support/photos'
 import { startServer, type RunningServer } from '../support/server'
 import { checkAcknowledged, runWriteLoad } from '../../scripts/bench/write-load'
 
@@ -13,8 +17,8 @@ afterAll(async () => {
   await closeTestDb()
 })
 
-async function serverOn(port: number) {
-  const server = await startServer(port)
+async function serverOn(port: number, env: Record<string, string> = {}) {
+  const server = await startServer(port, env)
   servers.push(server)
   return server
 }
@@ -87,4 +91,63 @@ describe('graceful restarts', () => {
     const check = await checkAcknowledged(testDb(), fish.id, result.acknowledged)
     expect(check).toEqual({ stored: result.acknowledged.length, lost: 0, doubled: 0, unacknowledged: 0 })
   }, 240_000) // four server starts; slow on a busy machine
+
+  it('a job running when its instance gets SIGTERM is handed back and finished once by the other instance', async () => {
+    // A and B share a storage folder and a job queue of their own (the main test server must not take the job).
+    const storage = mkdtempSync(join(tmpdir(), 'fintrail-handback-'))
+    const shared = { NUXT_STORAGE_DIR: storage, NUXT_JOBS_SCHEMA: 'pgboss_handback', NUXT_PHOTO_RETRY_DELAY_SECONDS: '2', NUXT_JOBS_STOP_GRACE_SECONDS: '1' }
+    // The derived-sizes folder is a file: A's first attempt fails and queues the retry job.
+    mkdirSync(join(storage, 'photos'), { recursive: true })
+    writeFileSync(join(storage, 'photos', 'derived'), 'not a folder')
+    const a = await serverOn(MAIN_PORT + 11, shared)
+    const { client } = await signedInUser()
+    const here = client.copy()
+    here.baseUrl = a.url
+    const fish = await createFish(here, (await createPond(here)).id)
+    const photo = await makeJpeg({ width: 1600, height: 1200 })
+    const { headers } = await tusUpload(a.url, here, photo, { metadata: { fishId: fish.id, filename: 'handed-back.jpg', view: 'top' } }).done
+    expect(headers['photo-state']).toBe('failed')
+    const photoId = headers['photo-id']!
+    rmSync(join(storage, 'photos', 'derived'))
+
+    // The job's first write to the photo waits on this row lock: the job stays running on A for as long as we hold it.
+    const holder = new pg.Client({ connectionString: testEnv().databaseUrl })
+    await holder.connect()
+    const jobState = async () => (await testDb().query<{ state: string, retry_count: number }>('select state, retry_count from pgboss_handback.job where name = $1 and data->>\'photoId\' = $2', ['photo-retry', photoId])).rows
+    try {
+      await holder.query('begin')
+      await holder.query('select id from photos where id = $1 for update', [photoId])
+      for (let i = 0; i < 300 && (await jobState())[0]?.state !== 'active'; i++) await pause(100)
+      expect(await jobState()).toEqual([{ state: 'active', retry_count: 0 }])
+
+      const b = await serverOn(MAIN_PORT + 12, shared)
+      const exited = new Promise<number | null>(resolve => a.process.once('exit', code => resolve(code)))
+      a.process.kill('SIGTERM')
+      expect(await exited).toBe(0)
+      // Handed back: failed by A's shutdown, waiting for (or already taken by) B, one attempt used.
+      // (pg-boss counts the attempt when the job is taken again.)
+      expect([[{ state: 'retry', retry_count: 0 }], [{ state: 'active', retry_count: 1 }]]).toContainEqual(await jobState())
+      await holder.query('commit')
+
+      // A's UPDATE, sent before it stopped, may still run once the lock is gone (a backend waiting on a lock does not
+      // notice its client left): the job on B then finds the photo pending and finishes it all the same.
+      for (let i = 0; i < 600 && (await jobState())[0]?.state !== 'completed'; i++) await pause(100)
+      const [finished] = await jobState()
+      expect(finished?.state).toBe('completed')
+      expect(finished?.retry_count).toBeGreaterThanOrEqual(1)
+      const rows = await photoRows('fish_id = $1', [fish.id])
+      expect(rows).toHaveLength(1)
+      expect(rows[0]).toMatchObject({ id: photoId, state: 'ready', sha256: sha256(photo) })
+      expect(rows[0]!.variants).toHaveLength(6)
+      expect(readdirSync(join(storage, 'photos', 'derived', photoId)).sort()).toEqual(ALL_DERIVED)
+      expect(b.process.exitCode).toBeNull()
+    }
+    finally {
+      await holder.query('rollback').catch(() => undefined)
+      await holder.end()
+      await testDb().query('update fish set profile_photo_id = null where id = $1', [fish.id])
+      await testDb().query('delete from photos where fish_id = $1', [fish.id])
+      rmSync(storage, { recursive: true, force: true })
+    }
+  }, 180_000)
 })

@@ -1,6 +1,6 @@
 import { spawn } from 'node:child_process'
 import { createHash } from 'node:crypto'
-import { existsSync, readdirSync, readFileSync } from 'node:fs'
+import { readFileSync } from 'node:fs'
 import { dirname, join } from 'node:path'
 import { deflateSync, crc32 } from 'node:zlib'
 import sharp from 'sharp'
@@ -8,6 +8,7 @@ import * as tus from 'tus-js-client'
 import type { ApiClient } from './client'
 import { testDb } from './db'
 import { testEnv } from './env'
+import { onS3, storedNames, storedUploadNames, testStorage, uploadInfoName } from './stored-files'
 
 export const TUS = '1.0.0'
 
@@ -152,37 +153,38 @@ export function storageDirs() {
   return { uploads: join(root, 'uploads'), originals: join(root, 'photos', 'originals'), derived: join(root, 'photos', 'derived') }
 }
 
-function listDir(dir: string) {
-  return existsSync(dir) ? readdirSync(dir) : []
-}
-
-/** Everything stored for one upload id and its photo (if any). */
-export function filesOf(uploadId: string, photoId?: string) {
-  const dirs = storageDirs()
+/** Everything stored for one upload id and its photo (if any), in the folder or the bucket under test. */
+export async function filesOf(uploadId: string, photoId?: string) {
   return {
-    upload: listDir(dirs.uploads).filter(name => name.startsWith(uploadId)).sort(),
-    original: photoId ? listDir(dirs.originals).filter(name => name.startsWith(photoId)) : [],
-    derived: photoId && existsSync(join(dirs.derived, photoId)) ? readdirSync(join(dirs.derived, photoId)).sort() : [],
-    work: photoId ? listDir(dirs.derived).filter(name => name.startsWith(`${photoId}.`)) : [],
+    upload: await storedUploadNames(uploadId),
+    original: photoId ? (await storedNames('photos/originals/')).filter(name => name.startsWith(photoId)) : [],
+    derived: photoId ? await storedNames(`photos/derived/${photoId}/`) : [],
+    work: photoId ? (await storedNames('photos/derived/')).filter(name => name.startsWith(`${photoId}.`)) : [],
   }
 }
 
 export const ALL_DERIVED = ['1024.jpg', '1024.webp', '2048.jpg', '2048.webp', '320.jpg', '320.webp']
 
+/** What the finished upload `id` leaves stored: its bytes and its info. */
+export const finishedUploadNames = (uploadId: string) => [uploadId, uploadInfoName(uploadId)].sort()
+
 /**
  * Files under storage that no photo row and no live upload accounts for. Every photo's original and
- * derived folder must have a row; every upload's bytes must have their .json and the reverse.
+ * derived folder must have a row; every upload's bytes must have their info and (in a folder) the reverse;
+ * in a bucket the info of an upload in progress stands alone until its last part arrives.
  */
 export async function strayFiles() {
-  const dirs = storageDirs()
   const { rows } = await testDb().query<{ id: string }>('select id from photos')
   const photoIds = new Set(rows.map(r => r.id))
   const stray: string[] = []
-  for (const name of listDir(dirs.originals)) if (!photoIds.has(name)) stray.push(`originals/${name}`)
-  for (const name of listDir(dirs.derived)) if (!photoIds.has(name)) stray.push(`derived/${name}`)
-  const uploads = new Set(listDir(dirs.uploads))
+  for (const name of await storedNames('photos/originals/')) if (!photoIds.has(name)) stray.push(`originals/${name}`)
+  for (const name of await storedNames('photos/derived/')) if (!photoIds.has(name)) stray.push(`derived/${name}`)
+  const uploads = new Set((await storedNames(testStorage().uploadsPrefix)).filter(name => /^[0-9a-f]{32}/.test(name)))
+  const infoSuffix = uploadInfoName('x').slice(1)
   for (const name of uploads) {
-    const partner = name.endsWith('.json') ? name.slice(0, -5) : `${name}.json`
+    const isInfo = name.endsWith(infoSuffix)
+    if (isInfo && onS3) continue
+    const partner = isInfo ? name.slice(0, -infoSuffix.length) : `${name.replace(/\.part$/, '')}${infoSuffix}`
     if (!uploads.has(partner)) stray.push(`uploads/${name}`)
   }
   return stray
@@ -190,6 +192,11 @@ export async function strayFiles() {
 
 export function fileSha256(path: string) {
   return sha256(readFileSync(path))
+}
+
+/** The sha256 of a stored object (`photos/originals/<id>`). */
+export async function storedSha256(key: string) {
+  return sha256(await testStorage().readBuffer(key))
 }
 
 export async function photoRows(where: string, params: unknown[]) {
@@ -217,6 +224,8 @@ export async function startBuildCopy(outputDir: string, port: number) {
       NUXT_APP_ORIGIN: `http://127.0.0.1:${port}`,
       NUXT_STORAGE_DIR: env.storageDir,
       NUXT_SMTP_PORT: String(env.smtpPort),
+      // The object-storage pass: the copy must find the S3 client in .output too.
+      ...Object.fromEntries(Object.entries(process.env).filter(([name]) => name.startsWith('NUXT_STORAGE_S3_'))),
     },
     stdio: ['ignore', 'pipe', 'pipe'],
   })

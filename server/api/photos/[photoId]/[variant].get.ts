@@ -1,7 +1,5 @@
-import { createReadStream } from 'node:fs'
-import { stat } from 'node:fs/promises'
-import { join } from 'node:path'
 import { z } from 'zod'
+import { derivedKey } from '../../../storage/file-storage'
 
 // Only the derived copies are ever served (no metadata in them); the original keeps its GPS position and stays put.
 const variantParams = z.object({
@@ -16,11 +14,14 @@ export default defineEventHandler(async (event) => {
   if (photo.state !== 'ready' || (photo.removedAt && !mayRemovePhoto(photo, user, role))) {
     throw createError({ statusCode: 404, statusMessage: 'Photo not found' })
   }
-  const file = join(derivedDir(photo.id), variant)
-  const info = await stat(file).catch(() => null)
+  const storage = useFileStorage()
+  const key = derivedKey(photo.id, variant)
+  const info = await storage.stat(key).catch((error) => {
+    throw createError({ statusCode: 503, statusMessage: 'Storage unavailable', message: storageUnavailableMessage(error) })
+  })
   if (!info) throw createError({ statusCode: 404, statusMessage: 'Photo not found' })
 
-  const etag = `"${photo.id.slice(0, 8)}-${variant}-${info.size.toString(36)}-${Math.round(info.mtimeMs).toString(36)}"`
+  const etag = `"${photo.id.slice(0, 8)}-${variant}-${info.size.toString(36)}-${info.modified.getTime().toString(36)}"`
   setResponseHeaders(event, {
     'ETag': etag,
     // Private: a shared cache must never hand one member's photo to someone else.
@@ -37,5 +38,5 @@ export default defineEventHandler(async (event) => {
     'Content-Type': variant.endsWith('.webp') ? 'image/webp' : 'image/jpeg',
     'Content-Length': String(info.size),
   })
-  return sendStream(event, createReadStream(file))
+  return sendStream(event, await storage.read(key))
 })
