@@ -44,13 +44,9 @@ export function useTimeline(fishId: MaybeRefOrGetter<string>) {
   const olderCursor = ref<string | null | undefined>(undefined)
   const loadingMore = ref(false)
   const moreError = ref('')
-<<<<<<< HEAD
-  const first = useSavedFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
-=======
   // The first page comes with the profile's HTML (and again in its payload): a screen or two of entries keeps a
   // long life's page small on a slow link; older pages are larger, asked for one at a time.
-  const first = useFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
->>>>>>> main
+  const first = useSavedFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
     key: `fish-timeline-${toValue(fishId)}`,
     query: computed(() => ({ limit: FIRST_TIMELINE_PAGE, ...(kinds.value.length ? { kind: kinds.value.join(',') } : {}) })),
   })
