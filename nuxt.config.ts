@@ -7,7 +7,7 @@ const SELF = '\'self\''
 const NONE = '\'none\''
 
 export default defineNuxtConfig({
-  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint', 'nuxt-security'],
+  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint', 'nuxt-security', '@vite-pwa/nuxt'],
   devtools: { enabled: false },
   app: {
     head: {
@@ -16,6 +16,11 @@ export default defineNuxtConfig({
       meta: [
         { name: 'viewport', content: 'width=device-width, initial-scale=1' },
         { name: 'theme-color', content: '#0d3b3e' },
+      ],
+      link: [
+        { rel: 'manifest', href: '/manifest.webmanifest' },
+        { rel: 'icon', type: 'image/png', href: '/icons/favicon-32.png' },
+        { rel: 'apple-touch-icon', href: '/icons/apple-touch-icon-180.png' },
       ],
     },
   },
@@ -72,6 +77,8 @@ export default defineNuxtConfig({
       cookie: { secure: true, sameSite: 'lax', httpOnly: true },
     },
   },
+  // The page the service worker keeps for starting the app with no network: rendered with no session and no data.
+  routeRules: { '/offline-shell': { ssr: false } },
   experimental: {
     // A link's page code loads when the person is about to follow it (pointer over it, focus, touch), not
     // for every link that scrolls into view: on a slow link the profile would fetch four other pages' code.
@@ -110,6 +117,40 @@ export default defineNuxtConfig({
   // useUserSession: its plugin would add an inner request to /api/_auth/session to every server render.
   auth: { loadStrategy: 'none' },
   eslint: { config: { stylistic: true } },
+  // Installable app and offline start (see "Offline at the pond side" in DEVELOPERS.md). Our own service worker
+  // (service-worker/sw.ts): Workbox precaches the built files; records are kept in IndexedDB by the app, never here.
+  pwa: {
+    strategies: 'injectManifest',
+    srcDir: '../service-worker',
+    filename: 'sw.ts',
+    registerType: 'autoUpdate',
+    injectRegister: false,
+    // Registered by app/plugins/offline.client.ts (a plain register call, no inline script, no extra library).
+    client: { registerPlugin: false, installPrompt: false, periodicSyncForUpdates: 0 },
+    manifest: {
+      name: 'Fintrail',
+      short_name: 'Fintrail',
+      description: 'Lifelong identity and medical records for individual pond fish',
+      lang: 'en',
+      start_url: '/',
+      scope: '/',
+      display: 'standalone',
+      background_color: '#fbf9f4',
+      theme_color: '#0d3b3e',
+      icons: [
+        { src: '/icons/icon-192.png', sizes: '192x192', type: 'image/png' },
+        { src: '/icons/icon-512.png', sizes: '512x512', type: 'image/png' },
+        { src: '/icons/maskable-512.png', sizes: '512x512', type: 'image/png', purpose: 'maskable' },
+      ],
+    },
+    includeManifestIcons: false,
+    injectManifest: {
+      // The .br/.gz copies beside each file are left out: the browser gets one encoding and stores it decoded.
+      globPatterns: ['_nuxt/**/*.{js,css,woff,woff2}', 'icons/*.png'],
+      maximumFileSizeToCacheInBytes: 3 * 1024 * 1024,
+    },
+    devOptions: { enabled: false },
+  },
   // Security headers only (nuxt-security). Its request guards are off: the app has its own sign-in limiter,
   // same-origin check and text-input check, and a size limiter or XSS filter would refuse tus chunks,
   // archives and ordinary JSON. Upgrading requests to https is added at run time for an https origin

@@ -3,7 +3,7 @@ import type { ApiResponse } from '~/utils/api-fetch'
 import { formatDay, formatEntryDate } from '~/utils/timeline-labels'
 
 export function useFishPhotos(fishId: MaybeRefOrGetter<string>) {
-  return useFetch<ApiResponse<'/api/fish/:fishId/photos'>>(() => `/api/fish/${toValue(fishId)}/photos`, { key: `fish-photos-${toValue(fishId)}` })
+  return useSavedFetch<ApiResponse<'/api/fish/:fishId/photos'>>(() => `/api/fish/${toValue(fishId)}/photos`, { key: `fish-photos-${toValue(fishId)}` })
 }
 
 /** The served sizes of a photo: WebP with a JPEG fallback, 320, 1024 and 2048 px on the long side. */

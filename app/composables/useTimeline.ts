@@ -10,7 +10,7 @@ export type PondLengthWeight = ApiResponse<'/api/ponds/:pondId/length-weight'>
 type TimelinePageAnswer = ApiResponse<'/api/fish/:fishId/timeline'>
 
 export function useFishFacts(fishId: MaybeRefOrGetter<string>) {
-  return useFetch<ApiResponse<'/api/fish/:fishId/facts'>>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
+  return useSavedFetch<ApiResponse<'/api/fish/:fishId/facts'>>(() => `/api/fish/${toValue(fishId)}/facts`, { key: `fish-facts-${toValue(fishId)}` })
 }
 
 /** The chart's sample of a long series by default; `every` (the printed record, "show every measurement") asks for all. */
@@ -46,7 +46,7 @@ export function useTimeline(fishId: MaybeRefOrGetter<string>) {
   const moreError = ref('')
   // The first page comes with the profile's HTML (and again in its payload): a screen or two of entries keeps a
   // long life's page small on a slow link; older pages are larger, asked for one at a time.
-  const first = useFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
+  const first = useSavedFetch<TimelinePageAnswer>(() => `/api/fish/${toValue(fishId)}/timeline`, {
     key: `fish-timeline-${toValue(fishId)}`,
     query: computed(() => ({ limit: FIRST_TIMELINE_PAGE, ...(kinds.value.length ? { kind: kinds.value.join(',') } : {}) })),
   })
@@ -83,7 +83,7 @@ export interface PondVet { userId: string, name: string }
 
 /** The pond's vets, for "performed by" and "on the instruction of": chosen, so the record can trace them. */
 export function usePondVets(pondId: MaybeRefOrGetter<string>) {
-  const members = useFetch<{ userId: string, name: string, role: string, readOnly: boolean }[]>(() => `/api/ponds/${toValue(pondId)}/members`, {
+  const members = useSavedFetch<{ userId: string, name: string, role: string, readOnly: boolean }[]>(() => `/api/ponds/${toValue(pondId)}/members`, {
     key: `pond-members-${toValue(pondId)}`,
   })
   const vets = computed<PondVet[]>(() => (members.data.value ?? []).filter(m => m.role === 'vet' && !m.readOnly).map(m => ({ userId: m.userId, name: m.name })))

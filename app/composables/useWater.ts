@@ -9,11 +9,11 @@ export interface WaterTargetsAnswer {
 }
 
 export function useWaterTests(pondId: MaybeRefOrGetter<string>) {
-  return useFetch<{ waterTests: WaterTestView[] }>(() => `/api/ponds/${toValue(pondId)}/water-tests`, { key: `water-tests-${toValue(pondId)}` })
+  return useSavedFetch<{ waterTests: WaterTestView[] }>(() => `/api/ponds/${toValue(pondId)}/water-tests`, { key: `water-tests-${toValue(pondId)}` })
 }
 
 export function useWaterTargets(pondId: MaybeRefOrGetter<string>) {
-  return useFetch<WaterTargetsAnswer>(() => `/api/ponds/${toValue(pondId)}/water-targets`, { key: `water-targets-${toValue(pondId)}` })
+  return useSavedFetch<WaterTargetsAnswer>(() => `/api/ponds/${toValue(pondId)}/water-targets`, { key: `water-targets-${toValue(pondId)}` })
 }
 
 export function usePondFishEvents(pondId: MaybeRefOrGetter<string>) {

@@ -3,6 +3,15 @@ import type { CurrentUser, UnitSystem } from '#shared/types'
 import type { DecimalMark } from '#shared/utils/decimal'
 import type { ApiResponse } from '~/utils/api-fetch'
 
+async function keptUser(): Promise<CurrentUser | null> {
+  try {
+    return ((await savedAnswer('/api/me'))?.data as CurrentUser | undefined) ?? null
+  }
+  catch {
+    return null
+  }
+}
+
 export const useSessionStore = defineStore('session', {
   state: () => ({ user: null as CurrentUser | null, loaded: false }),
   getters: {
@@ -14,27 +23,50 @@ export const useSessionStore = defineStore('session', {
     async load() {
       try {
         this.user = await useRequestFetch()<CurrentUser>('/api/me')
+        await this.keepOnDevice()
       }
-      catch {
-        this.user = null
+      catch (error) {
+        // With no network the app starts for whoever was signed in on this device, from what it kept.
+        this.user = import.meta.client && isNetworkFailure(error) ? await keptUser() : null
       }
       this.loaded = true
     },
+    /** Makes this account the device's one (another account's kept data is deleted) and keeps the user for offline starts. */
+    async keepOnDevice() {
+      if (!import.meta.client || !this.user) return
+      try {
+        await adoptAccount(this.user.id)
+        await saveAnswer('/api/me', this.user)
+      }
+      catch { /* no IndexedDB (private mode): the app works, only not offline */ }
+    },
     async signIn(body: { email: string, password: string }) {
       this.user = await apiFetch<ApiResponse<'/api/auth/sign-in', 'post'>>('/api/auth/sign-in', { method: 'POST', body })
+      await this.keepOnDevice()
       return this.user
     },
     async signUp(body: { name: string, email: string, password: string, decimalMark?: DecimalMark }) {
       this.user = await apiFetch<ApiResponse<'/api/auth/sign-up', 'post'>>('/api/auth/sign-up', { method: 'POST', body })
+      await this.keepOnDevice()
       return this.user
     },
+    /** Ends the session and removes everything this device kept for the account (records, outbox, drafts). */
     async signOut() {
-      await apiFetch('/api/auth/sign-out', { method: 'POST' })
+      try {
+        await apiFetch('/api/auth/sign-out', { method: 'POST' })
+      }
+      catch (error) {
+        // Offline, the device is still cleared; the server's session ends at its own time limits.
+        if (!isNetworkFailure(error)) throw error
+      }
       this.user = null
+      forgetOutbox()
+      await clearDevice()
       await clearNuxtData()
     },
     async update(body: { name?: string, units?: UnitSystem, decimalMark?: DecimalMark }) {
       this.user = await apiFetch<ApiResponse<'/api/me', 'patch'>>('/api/me', { method: 'PATCH', body })
+      await this.keepOnDevice()
     },
   },
 })

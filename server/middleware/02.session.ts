@@ -18,6 +18,8 @@ function checkedByPageRequest(event: H3Event) {
 
 export default defineEventHandler(async (event) => {
   if (event.path.startsWith('/_nuxt/') || event.path.startsWith('/__nuxt') || event.path === '/api/health') return
+  // The page shell the service worker keeps for anyone: no session is read, so no cookie is set on it.
+  if (event.path === '/offline-shell') return
   const outer = checkedByPageRequest(event)
   if (outer) {
     event.context.auth = outer.auth

@@ -82,7 +82,7 @@ async function countPrints(page: Page) {
 /** The pages every signed-in person has, for a pond and a fish of it. */
 function signedInPages(pondId: string, fishId: string) {
   return [
-    '/', '/account', '/due', '/ponds/new', '/ponds/import',
+    '/', '/account', '/due', '/outbox', '/ponds/new', '/ponds/import',
     `/ponds/${pondId}`, `/ponds/${pondId}/settings`, `/ponds/${pondId}/import`, `/ponds/${pondId}/water`,
     `/ponds/${pondId}/doses`, `/ponds/${pondId}/fish/new`,
     `/fish/${fishId}`, `/fish/${fishId}/edit`, `/fish/${fishId}/record`,

@@ -1,0 +1,300 @@
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import type { BrowserContext, Page } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { browserForFile, screenshots, signIn } from '../support/browser'
+import { testDb } from '../support/db'
+import { addMember, createFish, createPond, signedInUser } from '../support/factories'
+import { makeKoiPhoto } from '../support/photos'
+import { addEntry, daysAgo } from '../support/timeline'
+
+// Offline at the pond side, in Chromium with the network switched off through the browser context
+// (context.setOffline): the service worker starts the app, the device's kept answers show the fish, new entries
+// wait in the outbox (IndexedDB) and are sent once when the network is back. One browser for the whole file.
+
+const chromium = browserForFile()
+let browser: BrowserContext
+let files: string
+
+beforeAll(() => {
+  browser = chromium.context
+  files = mkdtempSync(join(tmpdir(), 'fintrail-offline-'))
+})
+afterAll(() => {
+  rmSync(files, { recursive: true, force: true })
+})
+
+/** The service worker controls the page and has the shell; the fish's answers are kept on the device. */
+async function readyForOffline(page: Page, fishId: string) {
+  await page.waitForFunction(() => navigator.serviceWorker.controller !== null, undefined, { timeout: 30_000 })
+  await page.waitForFunction(async () => Boolean(await caches.match('/offline-shell')), undefined, { timeout: 30_000 })
+  await expect.poll(() => keptKeys(page), { timeout: 10_000 }).toEqual(expect.arrayContaining([
+    `/api/fish/${fishId}`, `/api/fish/${fishId}/facts`, expect.stringMatching(new RegExp(`^/api/fish/${fishId}/timeline(\\?limit=\\d+)?$`)), '/api/me',
+  ]))
+}
+
+/** Reads the device database without creating it (opening a missing one would make an empty one). */
+async function deviceStore(page: Page, store: 'saved' | 'outbox'): Promise<unknown[]> {
+  return page.evaluate(async (storeName) => {
+    const account = localStorage.getItem('fintrail-account')
+    const name = `fintrail-${account}`
+    if (!account || !(await indexedDB.databases()).some(d => d.name === name)) return []
+    return new Promise<unknown[]>((resolve, reject) => {
+      const open = indexedDB.open(name)
+      open.onerror = () => reject(open.error)
+      open.onsuccess = () => {
+        const db = open.result
+        const request = db.transaction(storeName).objectStore(storeName).getAll()
+        request.onsuccess = () => {
+          db.close()
+          resolve((request.result as { file?: unknown }[]).map(({ file: _file, ...rest }) => rest))
+        }
+        request.onerror = () => reject(request.error)
+      }
+    })
+  }, store)
+}
+
+async function keptKeys(page: Page) {
+  return (await deviceStore(page, 'saved') as { key: string }[]).map(row => row.key)
+}
+
+async function countRows(sql: string, params: unknown[]) {
+  const { rows } = await testDb().query<{ n: string }>(sql, params)
+  return Number(rows[0]!.n)
+}
+
+async function addWeight(page: Page, kg: string, cm: string) {
+  await page.getByTestId('add-measurement').click()
+  const form = page.getByTestId('entry-form')
+  await form.getByLabel('Weight', { exact: true }).fill(kg)
+  await form.getByTestId('weight-unit-kg').click()
+  await form.getByLabel('Length (cm)').fill(cm)
+  await form.getByTestId('entry-submit').click()
+  await form.waitFor({ state: 'detached' })
+}
+
+async function addObservation(page: Page, text: string) {
+  await page.getByTestId('add-observation').click()
+  const form = page.getByTestId('entry-form')
+  await form.getByLabel('What you saw').fill(text)
+  await form.getByTestId('entry-submit').click()
+  await form.waitFor({ state: 'detached' })
+}
+
+describe('offline at the pond side, in Chromium', () => {
+  it('opens a fish with no network, keeps a weight, an observation and a photo, and sends each exactly once when back online', async () => {
+    const owner = await signedInUser({ name: 'Offline Owner' })
+    const pond = await createPond(owner.client, { name: 'Cellar pond' })
+    const fish = await createFish(owner.client, pond.id, { name: 'Mizu' })
+    await addEntry(owner.client, fish.id, { kind: 'measurement', occurredAt: daysAgo(20), data: { weightG: 1250, lengthCm: 42, lengthType: 'total' } })
+    const photoPath = join(files, 'mizu-from-above.jpg')
+    writeFileSync(photoPath, await makeKoiPhoto(11, { width: 1200, height: 900 }))
+
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`)
+    await readyForOffline(page, fish.id)
+
+    await browser.setOffline(true)
+    await page.reload()
+    // The shell from the service worker, the fish from what the device kept.
+    await page.getByTestId('offline-banner').waitFor()
+    expect(await page.getByTestId('offline-banner').textContent()).toMatch(/offline — showing what was saved on this device at \d\d:\d\d/)
+    expect(await page.getByTestId('fish-name').textContent()).toBe('Mizu')
+    expect(await page.getByTestId('entry-measurement').count()).toBe(1)
+
+    await addWeight(page, '1.3', '43')
+    await addObservation(page, 'Rubbing on the pond wall after the storm')
+    await page.getByTestId('add-photos').click()
+    await page.getByTestId('photo-offline-input').setInputFiles(photoPath)
+    await page.getByTestId('waiting-photo').waitFor()
+    for (const kind of ['measurement', 'observation', 'photo']) {
+      expect(await page.getByTestId(`waiting-${kind}`).getByTestId('waiting-state').textContent()).toBe('waiting to send')
+    }
+    expect(await page.getByTestId('outbox-count').textContent()).toBe('3')
+    expect(await deviceStore(page, 'outbox')).toHaveLength(3)
+    // Nothing reached the server while offline.
+    expect(await countRows('select count(*) n from timeline_entries where fish_id = $1', [fish.id])).toBe(1)
+    // From the top: the banner under the header, the waiting entries further down the full-page capture.
+    await page.evaluate(() => window.scrollTo(0, 0))
+    await screenshots(page, 'offline-fish-waiting')
+    await page.getByTestId('nav-outbox').click()
+    await page.getByRole('heading', { name: 'Outbox' }).waitFor()
+    await screenshots(page, 'offline-outbox')
+    await page.goBack()
+    await page.getByTestId('timeline-waiting').waitFor()
+
+    await browser.setOffline(false)
+    // Sent by itself: the waiting list empties and the record shows the entries as ordinary (sent) ones.
+    // The photo is processed (sharp) before its upload answers: on a busy machine that takes a while.
+    await page.getByTestId('timeline-waiting').waitFor({ state: 'detached', timeout: 60_000 })
+    await expect.poll(() => page.getByTestId('entry-measurement').count(), { timeout: 30_000 }).toBe(2)
+    expect(await page.getByTestId('entry-observation').textContent()).toContain('Rubbing on the pond wall after the storm')
+    expect(await page.getByTestId('nav-outbox').count()).toBe(0)
+    expect(await page.getByTestId('offline-banner').count()).toBe(0)
+    expect(await deviceStore(page, 'outbox')).toHaveLength(0)
+
+    expect(await countRows('select count(*) n from timeline_entries where fish_id = $1 and kind = \'measurement\'', [fish.id])).toBe(2)
+    expect(await countRows('select count(*) n from timeline_entries where fish_id = $1 and kind = \'observation\'', [fish.id])).toBe(1)
+    expect(await countRows('select count(*) n from photos where fish_id = $1', [fish.id])).toBe(1)
+    const { rows: [weight] } = await testDb().query<{ data: { weightG: number, lengthCm: number } }>(
+      'select data from timeline_entries where fish_id = $1 and kind = \'measurement\' order by created_at desc limit 1', [fish.id])
+    expect(weight!.data.weightG).toBe(1300)
+    expect(weight!.data.lengthCm).toBe(43)
+    await page.close()
+  }, 150_000)
+
+  it('sends again after the answer to a send was lost, and the server keeps the entry once', async () => {
+    const owner = await signedInUser({ name: 'Lost Answer Owner' })
+    const pond = await createPond(owner.client, { name: 'Orchard pond' })
+    const fish = await createFish(owner.client, pond.id, { name: 'Kaze' })
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`)
+    await page.getByTestId('fish-name').waitFor()
+
+    // The first send reaches the server, which writes the entry; its answer is then dropped on the way back.
+    const posts: string[] = []
+    await page.route(`**/api/fish/${fish.id}/timeline`, async (route) => {
+      if (route.request().method() !== 'POST') return route.continue()
+      posts.push(route.request().postData() ?? '')
+      if (posts.length > 1) return route.continue()
+      const answer = await route.fetch()
+      expect(answer.status()).toBe(201)
+      await route.abort('connectionreset')
+    })
+    await addObservation(page, 'Fins clamped in the morning, eating by noon')
+    await page.getByTestId('entry-observation').waitFor({ timeout: 30_000 })
+    await page.getByTestId('timeline-waiting').waitFor({ state: 'detached' })
+
+    // Two sends of the same device-made id, one entry.
+    expect(posts).toHaveLength(2)
+    expect(JSON.parse(posts[0]!).id).toBe(JSON.parse(posts[1]!).id)
+    expect(await countRows('select count(*) n from timeline_entries where fish_id = $1 and kind = \'observation\'', [fish.id])).toBe(1)
+    expect(await page.getByTestId('entry-observation').count()).toBe(1)
+    await page.close()
+  })
+
+  it('keeps an entry the server refused because the role was removed while offline, with the reason, to copy or discard', async () => {
+    const owner = await signedInUser({ name: 'Pond Owner' })
+    const keeper = await signedInUser({ name: 'Removed Keeper' })
+    const pond = await createPond(owner.client, { name: 'Allotment pond' })
+    await addMember(pond.id, keeper.user.id, 'keeper')
+    const fish = await createFish(owner.client, pond.id, { name: 'Tora' })
+    const page = await browser.newPage()
+    await signIn(page, keeper.email, keeper.password)
+    await page.goto(`/fish/${fish.id}`)
+    await readyForOffline(page, fish.id)
+
+    await browser.setOffline(true)
+    await addWeight(page, '0.9', '35')
+    await page.getByTestId('waiting-measurement').waitFor()
+    expect((await owner.client.request('DELETE', `/api/ponds/${pond.id}/members/${keeper.user.id}`)).status).toBe(200)
+    await browser.setOffline(false)
+
+    await expect.poll(() => page.getByTestId('waiting-measurement').getByTestId('waiting-state').textContent(), { timeout: 30_000 }).toBe('not sent')
+    await page.getByTestId('nav-outbox').click()
+    const item = page.locator('[data-testid^="outbox-item-"]')
+    await item.getByTestId('outbox-reason').waitFor()
+    expect(await item.getByTestId('outbox-reason').textContent()).toContain('no longer be a member')
+    expect(await page.getByTestId('outbox-count').textContent()).toBe('1')
+    const [kept] = await deviceStore(page, 'outbox') as { state: string, status: number, body: { data: { weightG: number } } }[]
+    expect(kept).toMatchObject({ state: 'failed', status: 404, body: { data: { weightG: 900 } } })
+    expect(await countRows('select count(*) n from timeline_entries where fish_id = $1', [fish.id])).toBe(0)
+
+    // Copy puts the entry in words on the clipboard, to record it another way.
+    await browser.grantPermissions(['clipboard-read', 'clipboard-write'])
+    await item.getByTestId('outbox-copy').click()
+    await item.getByText('Copied').waitFor()
+    const copied = await page.evaluate(() => navigator.clipboard.readText())
+    expect(copied).toContain('Weight & length · Tora')
+    expect(copied).toContain('"weightG": 900')
+    await screenshots(page, 'offline-outbox-refused')
+    await item.getByTestId('outbox-discard').click()
+    await item.getByTestId('outbox-discard-confirm').click()
+    await item.waitFor({ state: 'detached' })
+    expect(await deviceStore(page, 'outbox')).toHaveLength(0)
+    await page.close()
+  })
+
+  it('shows both versions when a profile edit went stale (409), and keeps the person\'s own on request', async () => {
+    const owner = await signedInUser({ name: 'Stale Editor' })
+    const pond = await createPond(owner.client, { name: 'Terrace pond' })
+    const fish = await createFish(owner.client, pond.id, { name: 'Sora', variety: 'Showa' })
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}/edit`)
+    await page.getByLabel('Variety').fill('Sanke')
+    // Someone else saves in between (here the same owner from another device).
+    expect((await owner.client.request('PATCH', `/api/fish/${fish.id}`, { body: { version: fish.version, variety: 'Kohaku' } })).status).toBe(200)
+    await page.getByRole('button', { name: 'Save changes' }).click()
+    const conflict = page.getByTestId('edit-conflict')
+    await conflict.waitFor()
+    expect(await conflict.getByTestId('conflict-variety').textContent()).toMatch(/Variety\s*Sanke\s*Kohaku/)
+    await conflict.getByTestId('conflict-keep-mine').click()
+    await page.waitForURL(url => url.pathname === `/fish/${fish.id}`)
+    const { rows: [row] } = await testDb().query<{ variety: string, version: number }>('select variety, version from fish where id = $1', [fish.id])
+    expect(row).toEqual({ variety: 'Sanke', version: fish.version + 2 })
+    await page.close()
+  })
+
+  it('sign-out clears every kept answer, the outbox database and the drafts; the service worker keeps no API answer, no session page and no Set-Cookie', async () => {
+    const owner = await signedInUser({ name: 'Careful Owner' })
+    const pond = await createPond(owner.client, { name: 'Courtyard pond' })
+    const fish = await createFish(owner.client, pond.id, { name: 'Yuki' })
+    const page = await browser.newPage()
+    await signIn(page, owner.email, owner.password)
+    await page.goto(`/fish/${fish.id}`)
+    await readyForOffline(page, fish.id)
+    await page.goto(`/ponds/${pond.id}`)
+    await expect.poll(() => keptKeys(page)).toContain(`/api/ponds/${pond.id}/fish`)
+
+    // With something unsent, sign-out asks first.
+    await openFish(page, fish.id)
+    await browser.setOffline(true)
+    await addWeight(page, '1.1', '40')
+    await page.getByTestId('sign-out').click()
+    await page.getByTestId('sign-out-confirm').waitFor()
+    await page.getByTestId('sign-out-cancel').click()
+    await page.getByTestId('sign-out-confirm').waitFor({ state: 'detached' })
+    await browser.setOffline(false)
+    await page.getByTestId('timeline-waiting').waitFor({ state: 'detached', timeout: 30_000 })
+
+    // The outbox is empty now: sign-out goes straight through and clears the device.
+    await page.getByTestId('sign-out').click()
+    await page.waitForURL(url => url.pathname === '/sign-in')
+    const left = await page.evaluate(async () => ({
+      databases: (await indexedDB.databases()).map(d => d.name),
+      local: Object.keys(localStorage).filter(key => key.startsWith('fintrail')),
+      caches: await Promise.all((await caches.keys()).map(async name => ({
+        name,
+        urls: (await (await caches.open(name)).keys()).map(request => new URL(request.url).pathname),
+      }))),
+    }))
+    expect(left.databases.filter(name => name?.startsWith('fintrail'))).toEqual([])
+    expect(left.local).toEqual([])
+    // What stays is the app itself: built files, icons and the empty shell; never an API answer or a page with records.
+    const urls = left.caches.flatMap(cache => cache.urls)
+    expect(urls.length).toBeGreaterThan(10)
+    for (const url of urls) expect(url).toMatch(/^\/(_nuxt\/|icons\/|offline-shell$|manifest\.webmanifest$)/)
+    expect(left.caches.map(cache => cache.name).every(name => name.startsWith('workbox-precache') || name.startsWith('fintrail-shell-'))).toBe(true)
+    const shell = await page.evaluate(async () => (await (await caches.match('/offline-shell'))!.text()))
+    expect(shell).not.toContain('Careful Owner')
+    expect(shell).not.toContain(owner.email)
+
+    // The shell answers the same to a signed-in request: no session is read, so no cookie is set.
+    const signedInShell = await owner.client.request('GET', '/offline-shell', { headers: { accept: 'text/html' } })
+    expect(signedInShell.status).toBe(200)
+    expect(signedInShell.headers.getSetCookie()).toEqual([])
+    expect(String(signedInShell.body)).not.toContain('Careful Owner')
+    await page.close()
+  })
+})
+
+async function openFish(page: Page, fishId: string) {
+  await page.goto(`/fish/${fishId}`)
+  await page.getByTestId('fish-name').waitFor()
+  return page
+}
