@@ -27,6 +27,9 @@ const RUNS = Number(process.env.BENCH_RUNS ?? 5)
 const WORK = join(process.env.BENCH_STORAGE_DIR ?? join(import.meta.dirname, '../../storage/bench'), 'photo-bench')
 const pool = new pg.Pool({ connectionString: process.env.DATABASE_URL, max: 2 })
 
+// BENCH_PHOTO_PARTS=sizes,upload,latency runs only those parts (default: all three).
+const PARTS = (process.env.BENCH_PHOTO_PARTS ?? 'sizes,upload,latency').split(',')
+const part = (name: string) => PARTS.includes(name)
 const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)]!
 const percentile = (values: number[], p: number) => [...values].sort((a, b) => a - b)[Math.min(values.length - 1, Math.ceil(values.length * p) - 1)]!
 const ms = (value: number) => `${value.toFixed(0)} ms`
@@ -244,13 +247,13 @@ async function main() {
   rmSync(WORK, { recursive: true, force: true })
   mkdirSync(WORK, { recursive: true })
   console.log(`Photo benchmarks on ${(await import('node:os')).cpus().length} cores, Node ${process.version}`)
-  await derivedSizes()
+  if (part('sizes')) await derivedSizes()
   const fishId = await seed()
   const app = await startBenchServer(PORT)
   try {
     const cookie = await signInCookie(app.url, 'photo-bench@example.com')
-    await throughput(app, cookie, fishId)
-    await latencyWhileProcessing(app, cookie, fishId)
+    if (part('upload')) await throughput(app, cookie, fishId)
+    if (part('latency')) await latencyWhileProcessing(app, cookie, fishId)
   }
   finally {
     app.stop()
