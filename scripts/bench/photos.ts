@@ -224,10 +224,13 @@ async function latencyWhileProcessing(app: { url: string }, cookie: string, fish
   const probe = startHealthProbe(app.url)
   const started = performance.now()
   const results = await Promise.all(photos.map((bytes, i) => tusSend(`${app.url}/api/uploads`, bytes, { cookie }, { fishId, filename: `pond-${i}.jpg` })))
+  // The sizes are made by the photo-derive job; an upload answers 'pending' if they take longer than its wait.
+  const readyCount = async () => (await pool.query<{ n: number }>('select count(*)::int as n from photos where fish_id = $1 and state = \'ready\'', [fishId])).rows[0]!.n
+  for (const deadline = Date.now() + 120_000; (await readyCount()) < 10 && Date.now() < deadline;) await new Promise(r => setTimeout(r, 100))
   const elapsed = performance.now() - started
   const busy = await probe.stop()
-  const { rows } = await pool.query<{ n: number }>('select count(*)::int as n from photos where fish_id = $1 and state = \'ready\'', [fishId])
-  if (rows[0]!.n !== 10 || results.some(r => r.status !== 204)) throw new Error(`expected 10 ready photos, got ${rows[0]!.n}`)
+  const ready = await readyCount()
+  if (ready !== 10 || results.some(r => r.status !== 204)) throw new Error(`expected 10 ready photos, got ${ready}`)
   console.log(`\n3. Health route while 10 photos of 12 megapixels are uploaded and processed (${(elapsed / 1000).toFixed(1)} s for all, ${busy.length} probes):`)
   console.log(`   idle: p50 ${percentile(idle, 0.5).toFixed(1)} ms, p99 ${percentile(idle, 0.99).toFixed(1)} ms`)
   console.log(`   busy: p50 ${percentile(busy, 0.5).toFixed(1)} ms, p99 ${percentile(busy, 0.99).toFixed(1)} ms, max ${Math.max(...busy).toFixed(1)} ms (target: p99 under 100 ms)`)
