@@ -138,12 +138,16 @@ describe('photos on a fish profile, in Chromium', () => {
       const tile = page.locator('[data-testid^="photo-"][data-state]').first()
       await expect.poll(() => tile.getAttribute('data-state'), { timeout: 15_000 }).toBe('pending')
       expect(await tile.getByTestId('photo-pending').textContent()).toMatch(/Processing/)
+      expect(await page.getByTestId('reference-photo-count').textContent()).toMatch(/being prepared/)
       await screenshots(page, 'fish-photo-processing')
 
       servers.push(await startServer(MAIN_PORT + 9, queue))
       // No reload: the gallery looks again by itself while a photo is pending.
       await expect.poll(() => tile.getAttribute('data-state'), { timeout: 60_000 }).toBe('ready')
       await expect.poll(() => tile.getByTestId('photo-thumb').evaluate(img => (img as HTMLImageElement).naturalWidth), { timeout: 15_000 }).toBeGreaterThan(0)
+      // It became the profile picture when it was ready: the portrait at the top shows it, still without a reload.
+      await expect.poll(() => page.locator('img[alt="Photo of Kumo"]').evaluate(img => (img as HTMLImageElement).naturalWidth), { timeout: 15_000 }).toBeGreaterThan(0)
+      await expect.poll(() => page.getByTestId('reference-photo-count').textContent()).toMatch(/1 photo from above/)
       const rows = await photoRows('fish_id = $1', [fish.id])
       expect(rows.map(row => row.state)).toEqual(['ready'])
       await page.close()
