@@ -68,12 +68,12 @@ async function main() {
   const base = await sharp({ create: { width: 640, height: 480, channels: 3, background: '#3f978f' } }).jpeg({ quality: 80 }).toBuffer()
   // A phone's photo: 4000 x 3000 with fine texture, so the JPEG is as large as a real one.
   const noise = await sharp({ create: { width: 4000, height: 3000, channels: 3, background: { r: 60, g: 100, b: 110 }, noise: { type: 'gaussian', mean: 120, sigma: 60 } } }).blur(1.2).raw().toBuffer()
-  const phone = await sharp(noise, { raw: { width: 4000, height: 3000, channels: 3 } }).jpeg({ quality: 90 }).toBuffer()
+  const phoneJpeg = await sharp(noise, { raw: { width: 4000, height: 3000, channels: 3 } }).jpeg({ quality: 90 }).toBuffer()
   const results = []
   for (const size of SIZES) {
     const started = performance.now()
     const label = `Bench ${size.fish}${size.cap ? ' capped' : ''}${size.phonePhotos ? ' phone photos' : ''}`
-    const pondId = await seedPond(label, size.fish, size.photosPerFish, owner.id, size.phonePhotos ? phone : base)
+    const pondId = await seedPond(label, size.fish, size.photosPerFish, owner.id, size.phonePhotos ? phoneJpeg : base)
     const { rows: [{ photoBytes }] } = await pool.query('select coalesce(sum(p.bytes), 0)::float8 as "photoBytes" from photos p join fish f on f.id = p.fish_id where f.pond_id = $1', [pondId])
     console.log(`seeded ${size.fish} fish, ${size.fish * MONTHS} measurements, ${size.fish * size.photosPerFish} photos in ${((performance.now() - started) / 1000).toFixed(1)} s`)
     await pool.query('analyze')
