@@ -1,4 +1,4 @@
-import type { TimelineEntryView } from '#shared/types/timeline'
+import type { TimelineEntryView } from '~/utils/api-shapes'
 import { FetchError } from 'ofetch'
 import type { ApiResponse } from '~/utils/api-fetch'
 

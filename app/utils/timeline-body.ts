@@ -1,6 +1,7 @@
 // What every per-kind entry body receives. Outside the timeline (the printable record, a revision)
 // only `data` and the fish are known; the rest is there when an entry is shown live.
-import type { FishRef, TimelineEntryView } from '#shared/types/timeline'
+import type { FishRef } from '#shared/types/timeline'
+import type { TimelineEntryView } from '~/utils/api-shapes'
 
 export interface EntryBodyContext {
   species: string
@@ -20,7 +21,7 @@ export interface EntryBodyContext {
 }
 
 /** An entry as its body needs it: kind and fields always; id, the other fish and derived facts when shown live. */
-export type EntryShown = Pick<TimelineEntryView, 'kind' | 'data'> & Partial<Pick<TimelineEntryView, 'id' | 'otherFish' | 'viewpoint' | 'derived'>>
+export type EntryShown = Pick<TimelineEntryView, 'kind'> & { data: Record<string, unknown> } & Partial<Pick<TimelineEntryView, 'id' | 'otherFish' | 'viewpoint' | 'derived'>>
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export type EntryBodyData = Record<string, any>

@@ -2,11 +2,11 @@ import type { H3Event } from 'h3'
 import { and, eq, ne, sql } from 'drizzle-orm'
 import type { z } from 'zod'
 import type { FieldErrors, PondRole } from '#shared/types'
-import type { TimelineEntryView } from '#shared/types/timeline'
+import type { ImportedAuthorship } from '#shared/types/timeline'
 import { ENTRY_DATA_SCHEMAS, type EntryKind } from '#shared/utils/timeline-schemas'
 import { ENTRY_KINDS } from '#shared/utils/enums'
 import { amendDecision, ENTRY_RULES, writeDecision } from '#shared/utils/timeline-rules'
-import { analyteFlag, enucleationConflict, eyeState, isEnucleation, isProlongedRecovery, measurementDerived, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
+import { analyteFlag, enucleationConflict, eyeState, isEnucleation, isProlongedRecovery, measurementDerived, treatmentLastDay, type EntryDerived, type EyeRemoval } from '#shared/utils/timeline-derived'
 import { treatmentSchedule, type GivenDose } from '#shared/utils/treatment-schedule'
 import { fieldErrorsFrom } from '#shared/utils/field-errors'
 import { AUTHOR_COLUMNS, authorJoins, dosesOf, type TimelineRow } from '../db/queries/timeline'
@@ -180,7 +180,7 @@ export async function lockFish(tx: Tx, fishId: string) {
 
 interface ViewContext { species: string, userId: string, role: PondRole }
 
-function derivedFor(row: TimelineRow, species: string): TimelineEntryView['derived'] {
+function derivedFor(row: TimelineRow, species: string): EntryDerived {
   const { kind, data } = row
   if (kind === 'measurement') return measurementDerived(data as Parameters<typeof measurementDerived>[0], species)
   if (kind === 'anaesthesia') return { prolongedRecovery: isProlongedRecovery(data.recoveryMinutes as number | undefined) }
@@ -201,7 +201,7 @@ function canAmend(row: TimelineRow, context: ViewContext) {
   return amendDecision({ userId: context.userId, role: context.role }, { authorId: authorId ?? '', kind, data }).allowed
 }
 
-function importedOf(row: TimelineRow): TimelineEntryView['imported'] {
+function importedOf(row: TimelineRow): ImportedAuthorship | null {
   if (row.imported_author_name == null) return null
   return {
     name: row.imported_author_name, role: row.imported_author_role, archiveMadeAt: new Date(row.imported_exported_at!).toISOString(),
@@ -209,7 +209,12 @@ function importedOf(row: TimelineRow): TimelineEntryView['imported'] {
   }
 }
 
-export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntryView {
+/**
+ * An entry as the timeline answers it. `kind` also names the photos and pond events shown beside the entries;
+ * `author` is null for an imported entry (see `imported`); `viewpoint` is 'related' for a companion note written on
+ * the other fish (`otherFish`) and shown here too; `canAmend` says whether the person asking may amend it.
+ */
+export function rowToView(row: TimelineRow, context: ViewContext) {
   const isPhoto = row.kind === 'photo'
   return {
     id: row.id,
@@ -234,7 +239,7 @@ export function rowToView(row: TimelineRow, context: ViewContext): TimelineEntry
 }
 
 /** The answer for an entry just written or changed, read back the same way the timeline reads it. */
-export async function entryView(entryId: string, context: ViewContext): Promise<TimelineEntryView> {
+export async function entryView(entryId: string, context: ViewContext) {
   const result = await useDb().execute<TimelineRow>(sql`
     select e.id, e.kind::text as kind, e.occurred_at, e.author_id, e.data, e.revision, e.entered_in_error,
       e.error_reason, e.error_at, 'subject' as viewpoint, e.related_fish_id as other_fish_id, ${AUTHOR_COLUMNS},

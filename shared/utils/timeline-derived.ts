@@ -2,6 +2,7 @@
 // out-of-range lab values, a long anaesthetic recovery, which eyes remain, which treatments run.
 import { fultonK, relativeWeight } from './condition'
 import type { BodySide, CompanionRelation, LengthType } from './timeline-schemas'
+import type { TreatmentSchedule } from './treatment-schedule'
 
 export interface MeasurementDerived {
   conditionK: number | null
@@ -19,6 +20,15 @@ export function measurementDerived(data: { weightG?: number, lengthCm?: number, 
 }
 
 export type AnalyteFlag = 'low' | 'high' | null
+
+/** What the server works out for an entry: only the fields of the entry's kind are present. */
+export interface EntryDerived extends Partial<MeasurementDerived> {
+  prolongedRecovery?: boolean
+  analyteFlags?: AnalyteFlag[]
+  treatmentLastDay?: string | null
+  /** A treatment given as a number of doses: each dose, given, missed or still due. */
+  schedule?: TreatmentSchedule | null
+}
 
 export function analyteFlag(analyte: { value: number, low?: number, high?: number }): AnalyteFlag {
   if (analyte.low !== undefined && analyte.value < analyte.low) return 'low'

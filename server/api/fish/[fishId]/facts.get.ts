@@ -1,6 +1,5 @@
 import { fishIdParams } from '#shared/utils/fish-schemas'
 import { fultonK } from '#shared/utils/condition'
-import type { CurrentTreatment, StandingFacts } from '#shared/types/timeline'
 import { eyeState, isCurrentTreatment, isProlongedRecovery, relationWords, treatmentLastDay, type EyeRemoval } from '#shared/utils/timeline-derived'
 import { treatmentSchedule } from '#shared/utils/treatment-schedule'
 import type { CompanionRelation } from '#shared/utils/timeline-schemas'
@@ -27,7 +26,8 @@ const MISSED_DOSES_SHOWN_FOR_DAYS = 7
 const iso = (at: string) => new Date(at).toISOString()
 const dayBefore = (day: string, days: number) => new Date(Date.parse(`${day}T00:00:00Z`) - days * 86_400_000).toISOString().slice(0, 10)
 
-function currentTreatments(rows: FactsRow['treatments'], today: string, now: Date): CurrentTreatment[] {
+/** Courses running today, and those ended in the last 7 days that still have missed doses. */
+function currentTreatments(rows: FactsRow['treatments'], today: string, now: Date) {
   return rows.flatMap((row) => {
     const data = row.data as TreatmentData
     const schedule = treatmentSchedule(data, iso(row.at), row.doses.map(d => ({ ...d, givenAt: iso(d.givenAt) })), now)
@@ -36,6 +36,7 @@ function currentTreatments(rows: FactsRow['treatments'], today: string, now: Dat
     if (!isCurrentTreatment(data, today) && !recentlyMissed) return []
     return [{
       entryId: row.entryId, drug: data.drug, route: data.route, dose: data.dose, doseUnit: data.doseUnit, startOn: data.startOn, lastDay,
+      // The instructing vet, or the vet who wrote it; a name typed before vets were chosen from the pond.
       prescribedBy: data.instructedBy ?? data.givenOnInstructionOf ?? (row.authorIsVet ? row.authorName : null),
       schedule: schedule && {
         doseCount: schedule.doseCount, given: schedule.given, missed: schedule.missed, nextDueAt: schedule.nextDueAt,
@@ -45,7 +46,7 @@ function currentTreatments(rows: FactsRow['treatments'], today: string, now: Dat
   })
 }
 
-export default defineEventHandler(async (event): Promise<StandingFacts> => {
+export default defineEventHandler(async (event) => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   await requireFishRole(event, fishId)
   const now = new Date()
@@ -57,12 +58,14 @@ export default defineEventHandler(async (event): Promise<StandingFacts> => {
     eyes: eyeState(f.enucleations as EyeRemoval[]),
     problems: f.problems,
     treatments: currentTreatments(f.treatments, today, now),
+    // Not entered in error; `longRecovery` when recovery took over 30 minutes (common practice).
     lastAnaesthesia: last
       ? {
           at: iso(last.at), agent: last.agent, concentrationMgL: last.concentrationMgL, recoveryMinutes: last.recoveryMinutes ?? null,
           longRecovery: isProlongedRecovery(last.recoveryMinutes ?? undefined), entryId: last.entryId,
         }
       : null,
+    // Every anaesthesia the fish has had: how many, how many recovered slowly, and the last one's water and induction.
     anaesthesiaHistory: {
       count: f.anaesthesia_counts.count,
       longRecoveries: f.anaesthesia_counts.longRecoveries,
@@ -71,6 +74,7 @@ export default defineEventHandler(async (event): Promise<StandingFacts> => {
     },
     latestWeight: f.latest_weight && { ...f.latest_weight, at: iso(f.latest_weight.at) },
     latestLength: f.latest_length && { ...f.latest_length, at: iso(f.latest_length.at) },
+    // Fulton's K from the latest weighing that has both a weight and a length.
     latestCondition: f.latest_pair && {
       conditionK: fultonK(f.latest_pair.weightG, f.latest_pair.lengthCm) ?? 0, lengthType: f.latest_pair.lengthType,
       at: iso(f.latest_pair.at), entryId: f.latest_pair.entryId,

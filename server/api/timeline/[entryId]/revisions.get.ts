@@ -1,8 +1,7 @@
 import { asc, eq } from 'drizzle-orm'
 import { entryIdParams } from '#shared/utils/timeline-schemas'
-import type { TimelineRevisionView } from '#shared/types/timeline'
 
-export default defineEventHandler(async (event): Promise<TimelineRevisionView[]> => {
+export default defineEventHandler(async (event) => {
   const { entryId } = paramsValidated(event, entryIdParams, 'Entry not found')
   await requireEntryAccess(event, entryId)
   const rows = await useDb().select({ revision: schema.timelineRevisions, authorName: schema.users.name, importedName: schema.archivePeople.name })
@@ -13,6 +12,7 @@ export default defineEventHandler(async (event): Promise<TimelineRevisionView[]>
     .orderBy(asc(schema.timelineRevisions.revision))
   return rows.map(({ revision: r, authorName, importedName }) => ({
     revision: r.revision, occurredAt: r.occurredAt.toISOString(), data: r.data,
+    // An archive's person (id of that record) when the revision was read in from a pond archive.
     author: { id: (r.authorId ?? r.importedAuthorId)!, name: authorName ?? importedName ?? '', imported: !r.authorId },
     reason: r.reason, createdAt: r.createdAt.toISOString(),
   }))
