@@ -1,4 +1,4 @@
-import type { PhotoItem } from '#shared/types'
+import type { GalleryPhoto } from '~/utils/api-shapes'
 import type { ApiResponse } from '~/utils/api-fetch'
 import { formatDay, formatEntryDate } from '~/utils/timeline-labels'
 
@@ -21,7 +21,7 @@ export function photoSources(photoId: string) {
  * "Taken 12 May 2024" from the photo's own date, else "Uploaded …", in the reader's date style. The camera
  * writes its wall-clock time with no zone (stored as if UTC), so the taken day is shown as a calendar day.
  */
-export function photoDateLabel(photo: Pick<PhotoItem, 'takenAt' | 'uploadedAt'>) {
+export function photoDateLabel(photo: Pick<GalleryPhoto, 'takenAt' | 'uploadedAt'>) {
   return photo.takenAt ? `Taken ${formatDay(photo.takenAt.slice(0, 10))}` : `Uploaded ${formatEntryDate(photo.uploadedAt)}`
 }
 

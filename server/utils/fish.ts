@@ -1,12 +1,13 @@
 import { fishListSql, type FishListQuery, type FishListRow } from '../db/queries/fish-list'
-import type { FishListItem, FishProfile, PondRole } from '#shared/types'
+import type { FishListItem, PondRole } from '#shared/types'
 import type { FishRow } from '#shared/types/rows'
 import { ageInYears } from '#shared/utils/fish-schemas'
 import { fultonK } from '#shared/utils/condition'
 
 const focusOf = (x: number | null, y: number | null) => (x == null || y == null ? null : { x, y })
 
-export function toFishProfile(fish: FishRow, role: PondRole, pondName: string, readOnly = false): FishProfile {
+/** A fish as its profile reads it; `profileFocus` is where the head is on the profile photo (percent across, down), null keeps the centre. */
+export function toFishProfile(fish: FishRow, role: PondRole, pondName: string, readOnly = false) {
   return {
     id: fish.id, pondId: fish.pondId, pondName, role, readOnly,
     name: fish.name, species: fish.species, scientificName: fish.scientificName, variety: fish.variety, sex: fish.sex,

@@ -1,5 +1,5 @@
 import { eq, sql } from 'drizzle-orm'
-import type { CurrentUser, PhotoItem, PondRole } from '#shared/types'
+import type { CurrentUser, PondRole } from '#shared/types'
 import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
 import type { PhotoAccess } from './access'
 import type { PhotoRow } from '#shared/types/rows'
@@ -20,7 +20,7 @@ export function purgeDate(removedAt: Date) {
   return new Date(removedAt.getTime() + RECOVERABLE_DAYS * 86_400_000)
 }
 
-export function toPhotoItem(photo: PhotoRow, uploaderName: string, context: { user: CurrentUser, role: PondRole, profilePhotoId: string | null }): PhotoItem {
+export function toPhotoItem(photo: PhotoRow, uploaderName: string, context: { user: CurrentUser, role: PondRole, profilePhotoId: string | null }) {
   return {
     id: photo.id,
     fishId: photo.fishId,
@@ -28,6 +28,7 @@ export function toPhotoItem(photo: PhotoRow, uploaderName: string, context: { us
     view: photo.view,
     caption: photo.caption,
     originalName: photo.originalName,
+    // The photo's own EXIF date (the camera's clock), null when it had none.
     takenAt: photo.takenAt?.toISOString() ?? null,
     uploadedAt: photo.createdAt.toISOString(),
     state: photo.state,
@@ -38,12 +39,13 @@ export function toPhotoItem(photo: PhotoRow, uploaderName: string, context: { us
     canEdit: mayEditPhoto(photo, context.user, context.role),
     canRemove: mayRemovePhoto(photo, context.user, context.role),
     removedAt: photo.removedAt?.toISOString() ?? null,
+    // When a removed photo is deleted for good.
     purgeAt: photo.removedAt ? purgeDate(photo.removedAt).toISOString() : null,
   }
 }
 
 /** The answer of a photo route: the row as the caller sees it, with the fish's current profile choice. */
-export async function photoItemFor(photoId: string, access: Pick<PhotoAccess, 'user' | 'role'>): Promise<PhotoItem> {
+export async function photoItemFor(photoId: string, access: Pick<PhotoAccess, 'user' | 'role'>) {
   const [row] = await useDb().select({ photo: schema.photos, uploaderName: sql<string>`coalesce(${schema.users.name}, ${schema.archivePeople.name}, '')`, profilePhotoId: schema.fish.profilePhotoId })
     .from(schema.photos)
     .leftJoin(schema.users, eq(schema.users.id, schema.photos.uploaderId))

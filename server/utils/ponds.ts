@@ -1,5 +1,5 @@
 import { and, count, eq, sql } from 'drizzle-orm'
-import type { PondDetail, PondRole } from '#shared/types'
+import type { PondRole } from '#shared/types'
 
 // Spelled out: Drizzle leaves columns unqualified in single-table selects, which would bind ponds.id to fish.id here.
 const aliveFishCount = sql<number>`(select count(*)::int from fish where fish.pond_id = ponds.id and fish.status = 'alive')`
@@ -14,7 +14,11 @@ export async function listPondsOf(userId: string) {
     .orderBy(schema.ponds.name)
 }
 
-export async function pondDetail(pondId: string, role: PondRole, readOnly = false): Promise<PondDetail> {
+/**
+ * A pond as its page reads it: `volumeMeasurement` is the shape, unit and readings (null when the volume was typed
+ * as a number), `healthCheckDay` the yearly check's MM-DD; `readOnly` when kept on after a handover to look, not to change.
+ */
+export async function pondDetail(pondId: string, role: PondRole, readOnly = false) {
   const [pond] = await useDb().select({
     id: schema.ponds.id, name: schema.ponds.name, volumeLitres: schema.ponds.volumeLitres, volumeMeasurement: schema.ponds.volumeMeasurement, notes: schema.ponds.notes,
     healthCheckDay: schema.ponds.healthCheckDay, waterTestIntervalDays: schema.ponds.waterTestIntervalDays,

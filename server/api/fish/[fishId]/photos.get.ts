@@ -1,9 +1,8 @@
 import { and, desc, eq, gt, isNull, or, sql } from 'drizzle-orm'
-import type { FishPhotos } from '#shared/types'
 import { fishIdParams } from '#shared/utils/fish-schemas'
 import { RECOVERABLE_DAYS } from '#shared/utils/photo-limits'
 
-export default defineEventHandler(async (event): Promise<FishPhotos> => {
+export default defineEventHandler(async (event) => {
   const { fishId } = paramsValidated(event, fishIdParams, 'Fish not found')
   const { fish, role, user, readOnly } = await requireFishRole(event, fishId)
   const cutoff = new Date(Date.now() - RECOVERABLE_DAYS * 86_400_000)
@@ -20,6 +19,7 @@ export default defineEventHandler(async (event): Promise<FishPhotos> => {
     .map(item => (readOnly ? { ...item, canEdit: false, canRemove: false } : item))
   return {
     photos: items.filter(item => !item.removedAt),
+    // Removed in the last 30 days and restorable by the caller (their own uploads; all of them for an owner).
     removed: items.filter(item => item.removedAt && item.canRemove),
     canUpload: PHOTO_ADD_ROLES.includes(role) && !readOnly,
     canSetProfile: PROFILE_PHOTO_ROLES.includes(role) && !readOnly,

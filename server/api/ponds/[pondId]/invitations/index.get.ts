@@ -1,8 +1,7 @@
 import { and, desc, eq, gt, isNull } from 'drizzle-orm'
 import { pondIdParams } from '#shared/utils/pond-schemas'
-import type { PendingInvitation } from '#shared/types'
 
-export default defineEventHandler(async (event): Promise<PendingInvitation[]> => {
+export default defineEventHandler(async (event) => {
   const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
   await requirePondRole(event, pondId, ['owner'])
   const rows = await useDb().select({
