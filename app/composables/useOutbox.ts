@@ -194,14 +194,19 @@ export function sendOutbox(): Promise<void> {
     runAgain = true
     return running
   }
-  running = run().finally(() => {
+  // One sender per device: two tabs of the same account would otherwise upload the same photo side by side.
+  const send: Promise<void> = typeof navigator !== 'undefined' && navigator.locks
+    ? navigator.locks.request('fintrail-outbox', () => run()).then(() => {})
+    : run()
+  const current = send.finally(() => {
     running = null
     if (runAgain) {
       runAgain = false
       void sendOutbox()
     }
   })
-  return running
+  running = current
+  return current
 }
 
 export function forgetOutbox() {

@@ -26,8 +26,16 @@ beforeAll(() => {
 afterAll(() => {
   rmSync(files, { recursive: true, force: true })
 })
-// One browser for the file: a test that fails while offline must not leave the next one without a network.
+// One browser for the file: a test that fails must not leave the next one without a network, nor a page of its own
+// whose outbox would keep sending alongside the next test's.
+const openPages: Page[] = []
+async function openPage() {
+  const page = await browser.newPage()
+  openPages.push(page)
+  return page
+}
 afterEach(async () => {
+  for (const page of openPages.splice(0)) await page.close().catch(() => {})
   await browser.setOffline(false)
 })
 
@@ -98,7 +106,7 @@ describe('offline at the pond side, in Chromium', () => {
     const photoPath = join(files, 'mizu-from-above.jpg')
     writeFileSync(photoPath, await makeKoiPhoto(11, { width: 1200, height: 900 }))
 
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`)
     await readyForOffline(page, fish.id)
@@ -156,7 +164,7 @@ describe('offline at the pond side, in Chromium', () => {
     const owner = await signedInUser({ name: 'Lost Answer Owner' })
     const pond = await createPond(owner.client, { name: 'Orchard pond' })
     const fish = await createFish(owner.client, pond.id, { name: 'Kaze' })
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`)
     await page.getByTestId('fish-name').waitFor()
@@ -189,7 +197,7 @@ describe('offline at the pond side, in Chromium', () => {
     const pond = await createPond(owner.client, { name: 'Allotment pond' })
     await addMember(pond.id, keeper.user.id, 'keeper')
     const fish = await createFish(owner.client, pond.id, { name: 'Tora' })
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, keeper.email, keeper.password)
     await page.goto(`/fish/${fish.id}`)
     await readyForOffline(page, fish.id)
@@ -229,7 +237,7 @@ describe('offline at the pond side, in Chromium', () => {
     const owner = await signedInUser({ name: 'Stale Editor' })
     const pond = await createPond(owner.client, { name: 'Terrace pond' })
     const fish = await createFish(owner.client, pond.id, { name: 'Sora', variety: 'Showa' })
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}/edit`)
     await page.getByLabel('Variety').fill('Sanke')
@@ -256,7 +264,7 @@ describe('offline at the pond side, in Chromium', () => {
     const photoPath = join(files, 'nami-large.jpg')
     writeFileSync(photoPath, bytes)
 
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`)
     await readyForOffline(page, fish.id)
@@ -323,7 +331,7 @@ describe('offline at the pond side, in Chromium', () => {
         startOn: daysAgo(0), doseCount: 3, intervalHours: 48, firstDoseAt: new Date(Date.now() - 3_600_000).toISOString(),
       },
     })
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`)
     await readyForOffline(page, fish.id)
@@ -391,7 +399,7 @@ describe('offline at the pond side, in Chromium', () => {
     await expect.poll(async () => (await testDb().query('select state from photos where id = $1', [photoId])).rows[0]?.state, { timeout: 60_000 }).toBe('ready')
     expect((await owner.client.post(`/api/fish/${fish.id}/profile-photo`, { photoId })).status).toBe(200)
 
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`)
     await readyForOffline(page, fish.id)
@@ -432,7 +440,7 @@ describe('offline at the pond side, in Chromium', () => {
     const owner = await signedInUser({ name: 'Offline Editor' })
     const pond = await createPond(owner.client, { name: 'Quarry pond' })
     const fish = await createFish(owner.client, pond.id, { name: 'Ame', variety: 'Asagi' })
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}/edit`)
     await page.getByLabel('Variety').waitFor()
@@ -458,7 +466,7 @@ describe('offline at the pond side, in Chromium', () => {
     const owner = await signedInUser({ name: 'Careful Owner' })
     const pond = await createPond(owner.client, { name: 'Courtyard pond' })
     const fish = await createFish(owner.client, pond.id, { name: 'Yuki' })
-    const page = await browser.newPage()
+    const page = await openPage()
     await signIn(page, owner.email, owner.password)
     await page.goto(`/fish/${fish.id}`)
     await readyForOffline(page, fish.id)
