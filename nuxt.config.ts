@@ -59,6 +59,10 @@ export default defineNuxtConfig({
     photoRetryDelaySeconds: 30,
     // How often each instance finishes photos whose instance stopped mid-way (0: only at start).
     photoRecoveryIntervalSeconds: 60,
+    // An upload's last request waits this long for its sizes (made by the photo-derive job) before answering 'pending'.
+    photoFinishWaitSeconds: 30,
+    // Workers of the photo-derive job in this process: 'auto' is its share of the machine's photo concurrency, 0 leaves the work to other instances.
+    photoDeriveWorkers: 'auto',
     // Failed sign-ins in the window: per account and address (then 429), per address over all accounts
     // (then 429), and per account from anywhere, above which each attempt waits up to the cap.
     signInLimit: 10,
@@ -100,9 +104,6 @@ export default defineNuxtConfig({
     },
     // Built assets are written with .br and .gz copies beside them and served in the encoding the browser takes.
     compressPublicAssets: { gzip: true, brotli: true },
-    experimental: { tasks: true },
-    // Photos removed 30+ days ago, expired unfinished uploads, stray files (also run once at start).
-    scheduledTasks: { '0 * * * *': ['photos:purge'] },
   },
   typescript: { strict: true },
   telemetry: false,

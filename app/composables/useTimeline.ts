@@ -84,7 +84,7 @@ export interface PondVet { userId: string, name: string }
 
 /** The pond's vets, for "performed by" and "on the instruction of": chosen, so the record can trace them. */
 export function usePondVets(pondId: MaybeRefOrGetter<string>) {
-  const members = useSavedFetch<{ userId: string, name: string, role: string, readOnly: boolean }[]>(() => `/api/ponds/${toValue(pondId)}/members`, {
+  const members = useSavedFetch<ApiResponse<'/api/ponds/:pondId/members'>>(() => `/api/ponds/${toValue(pondId)}/members`, {
     key: `pond-members-${toValue(pondId)}`,
   })
   const vets = computed<PondVet[]>(() => (members.data.value ?? []).filter(m => m.role === 'vet' && !m.readOnly).map(m => ({ userId: m.userId, name: m.name })))

@@ -1,5 +1,4 @@
-import type { WaterTestView } from '#shared/types/water'
-import type { PondFishEvent } from '#shared/utils/pond-events'
+import type { ApiResponse } from '~/utils/api-fetch'
 import type { TargetInUse, WaterParameter } from '#shared/utils/water-targets'
 import type { DecimalMark } from '#shared/utils/decimal'
 
@@ -9,7 +8,7 @@ export interface WaterTargetsAnswer {
 }
 
 export function useWaterTests(pondId: MaybeRefOrGetter<string>) {
-  return useSavedFetch<{ waterTests: WaterTestView[] }>(() => `/api/ponds/${toValue(pondId)}/water-tests`, { key: `water-tests-${toValue(pondId)}` })
+  return useSavedFetch<ApiResponse<'/api/ponds/:pondId/water-tests'>>(() => `/api/ponds/${toValue(pondId)}/water-tests`, { key: `water-tests-${toValue(pondId)}` })
 }
 
 export function useWaterTargets(pondId: MaybeRefOrGetter<string>) {
@@ -17,7 +16,7 @@ export function useWaterTargets(pondId: MaybeRefOrGetter<string>) {
 }
 
 export function usePondFishEvents(pondId: MaybeRefOrGetter<string>) {
-  return useFetch<{ events: PondFishEvent[] }>(() => `/api/ponds/${toValue(pondId)}/fish-events`, { key: `pond-fish-events-${toValue(pondId)}` })
+  return useFetch<ApiResponse<'/api/ponds/:pondId/fish-events'>>(() => `/api/ponds/${toValue(pondId)}/fish-events`, { key: `pond-fish-events-${toValue(pondId)}` })
 }
 
 /** The person's decimal mark (their account setting). */

@@ -6,7 +6,7 @@ import { drizzle } from 'drizzle-orm/node-postgres'
 import pg from 'pg'
 import { growthSql } from '../../server/db/queries/timeline'
 import { BUSY_FISH_ENTRIES, seedBusyFish, seedTenFishPond } from './seeds'
-import { load, ms, record, sequentialTimes, signInCookie, startBenchServer, timeSql } from './support'
+import { cpuAccount, load, type LoadResult, ms, record, sequentialTimes, signInCookie, startBenchServer, timeSql } from './support'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3530)
 const REQUESTS = Number(process.env.BENCH_REQUESTS ?? 400)
@@ -27,7 +27,7 @@ async function main() {
   const { userId, fishId, pondId: bigPondId } = await seedBusyFish(pool, EMAIL)
   const tenFishPondId = await seedTenFishPond(pool, userId)
   const db = drizzle(pool)
-  let server = await startBenchServer(PORT)
+  const server = await startBenchServer(PORT)
   try {
     const cookie = await signInCookie(server.url, EMAIL)
     const headers = { ...BROWSER, cookie }
@@ -62,21 +62,51 @@ async function main() {
     record({ what: `GET /api/fish/:id/growth, ${BUSY_FISH_ENTRIES / 4} weighings (chart sample), 1 connection`, figure: `p50 ${ms(growth.p50)}, p99 ${ms(growth.p99)}`, comparison: `its SQL p50 ${ms(growthSqlTimes.p50)}, p99 ${ms(growthSqlTimes.p99)}; every point (?points=all) p99 ${ms(growthAll.p99)}; before issue 11: p99 76 ms`, goal: 'p99 ≤ 30 ms', met: growth.p99 <= 30 && !growth.failures })
     console.log(`(failures: profile ${profile.failures}, pond ${pond.failures}, api ${api.failures}, growth ${growth.failures})`)
 
-    // Single process against one per core, the same pond list at ten connections, one after the other. Each is
-    // warmed up first with the same load for a few seconds: a freshly started process compiles its code and
-    // starts its background work (job queue, the which-fish worker's OpenCV) while the first requests come in.
-    const listUrl = `${server.url}/api/ponds/${bigPondId}/fish`
-    const warmup = Math.max(3, Math.round(SECONDS / 2))
-    await load(listUrl, cookie, warmup, 10)
-    const single = await load(listUrl, cookie, SECONDS, 10)
-    await server.stop()
+    // Single process against one per core, the same pond list at ten connections. Both servers run side by side
+    // (the cluster on the next port) and are warmed up with the same load first (a fresh process compiles its
+    // code and starts its background work); then they are measured in turns, A B A B, so a change in the
+    // machine's other load falls on both. The CPU each side used (server processes, PostgreSQL backends, this
+    // load generator) is counted too: on two cores the three share the same CPUs, which caps the cluster's gain.
+    const listUrl = (url: string) => `${url}/api/ponds/${bigPondId}/fish`
     const cores = (await import('node:os')).availableParallelism()
-    server = await startBenchServer(PORT, {}, cores)
-    const clusterCookie = await signInCookie(server.url, EMAIL)
-    await new Promise(done => setTimeout(done, 3000))
-    await load(listUrl, clusterCookie, warmup, 10)
-    const clustered = await load(listUrl, clusterCookie, SECONDS, 10)
-    record({ what: `GET /api/ponds/:id/fish (500 fish), 10 connections, ${cores} processes (npm start)`, figure: `${clustered.requestsPerSecond.toFixed(0)} req/s, p99 ${clustered.p99} ms`, comparison: `1 process in the same run: ${single.requestsPerSecond.toFixed(0)} req/s, p99 ${single.p99} ms (${(clustered.requestsPerSecond / single.requestsPerSecond).toFixed(2)}×)`, goal: '≥ 1.5× one process', met: clustered.requestsPerSecond >= 1.5 * single.requestsPerSecond && !clustered.errors && !clustered.non2xx })
+    const cluster = await startBenchServer(PORT + 1, {}, cores)
+    try {
+      const clusterCookie = await signInCookie(cluster.url, EMAIL)
+      const sides = [
+        { name: '1 process', server, cookie, runs: [] as LoadResult[], cpu: [] as Awaited<ReturnType<Awaited<ReturnType<typeof cpuAccount>>>>[] },
+        { name: `${cores} processes`, server: cluster, cookie: clusterCookie, runs: [] as LoadResult[], cpu: [] as Awaited<ReturnType<Awaited<ReturnType<typeof cpuAccount>>>>[] },
+      ]
+      const warmup = Math.max(3, Math.round(SECONDS / 2))
+      for (const side of sides) await load(listUrl(side.server.url), side.cookie, warmup, 10)
+      for (let round = 0; round < 2; round++) {
+        for (const side of sides) {
+          const cpu = await cpuAccount(side.server.pid, pool)
+          side.runs.push(await load(listUrl(side.server.url), side.cookie, SECONDS, 10))
+          side.cpu.push(await cpu())
+        }
+      }
+      const summary = sides.map((side) => {
+        const requests = side.runs.reduce((sum, r) => sum + r.requests, 0)
+        const perRequestMs = (pick: (c: typeof side.cpu[number]) => number) => 1000 * side.cpu.reduce((sum, c) => sum + pick(c), 0) / requests
+        const cpu = { server: perRequestMs(c => c.server), database: perRequestMs(c => c.database), loadGenerator: perRequestMs(c => c.loadGenerator) }
+        return {
+          ...side, cpu,
+          requestsPerSecond: side.runs.reduce((sum, r) => sum + r.requestsPerSecond, 0) / side.runs.length,
+          p99: Math.max(...side.runs.map(r => r.p99)),
+          failed: side.runs.some(r => r.errors || r.non2xx),
+          // What two cores could serve if nothing else ran: every CPU millisecond one request costs, on any side.
+          ceiling: 1000 * cores / (cpu.server + cpu.database + cpu.loadGenerator),
+        }
+      })
+      const [single, clustered] = summary as [typeof summary[0], typeof summary[0]]
+      const cpuWords = (side: typeof single) => `CPU per request: server ${side.cpu.server.toFixed(2)} ms, PostgreSQL ${side.cpu.database.toFixed(2)} ms, load generator ${side.cpu.loadGenerator.toFixed(2)} ms (${cores} cores: at most ${side.ceiling.toFixed(0)} req/s)`
+      console.log(`  ${single.name}: ${single.runs.map(r => r.requestsPerSecond.toFixed(0)).join(', ')} req/s; ${cpuWords(single)}`)
+      console.log(`  ${clustered.name}: ${clustered.runs.map(r => r.requestsPerSecond.toFixed(0)).join(', ')} req/s; ${cpuWords(clustered)}`)
+      record({ what: `GET /api/ponds/:id/fish (500 fish), 10 connections, ${cores} processes (npm start)`, figure: `${clustered.requestsPerSecond.toFixed(0)} req/s, p99 ${clustered.p99} ms; ${cpuWords(clustered)}`, comparison: `1 process, side by side (A B A B): ${single.requestsPerSecond.toFixed(0)} req/s, p99 ${single.p99} ms (${(clustered.requestsPerSecond / single.requestsPerSecond).toFixed(2)}×); ${cpuWords(single)}`, goal: '≥ 1.5× one process', met: clustered.requestsPerSecond >= 1.5 * single.requestsPerSecond && !clustered.failed })
+    }
+    finally {
+      await cluster.stop()
+    }
   }
   finally {
     await server.stop()

@@ -33,6 +33,8 @@ export DATABASE_URL="postgres://fintrail@127.0.0.1:$PG_PORT/$DB"
 [ -f .output/server/index.mjs ] || npx nuxt build
 export NUXT_SESSION_PASSWORD="$(random_secret)"
 export BENCH_STORAGE_DIR="$STORAGE_DIR/bench"
+BENCH_LOAD_START="$(cut -d' ' -f1-3 /proc/loadavg)"
+export BENCH_LOAD_START
 BENCH_RESULTS="$(mktemp)"
 export BENCH_RESULTS
 trap 'rm -f "$BENCH_RESULTS"' EXIT

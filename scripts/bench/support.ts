@@ -1,6 +1,6 @@
 // Shared pieces of the benchmarks: a built server on its own port, a signed-in cookie, autocannon and SQL timing.
 import { spawn } from 'node:child_process'
-import { appendFileSync, readFileSync } from 'node:fs'
+import { appendFileSync, readdirSync, readFileSync } from 'node:fs'
 import http from 'node:http'
 import { resolve } from 'node:path'
 import autocannon from 'autocannon'
@@ -49,11 +49,11 @@ export async function signInCookie(url: string, email: string) {
   return response.headers.getSetCookie().map(c => c.split(';')[0]).join('; ')
 }
 
-export interface LoadResult { p50: number, p99: number, requestsPerSecond: number, errors: number, non2xx: number }
+export interface LoadResult { p50: number, p99: number, requestsPerSecond: number, requests: number, errors: number, non2xx: number }
 
 export async function load(url: string, cookie: string, seconds = 10, connections = 10): Promise<LoadResult> {
   const result = await autocannon({ url, connections, duration: seconds, headers: { cookie } })
-  return { p50: result.latency.p50, p99: result.latency.p99, requestsPerSecond: result.requests.average, errors: result.errors, non2xx: result.non2xx }
+  return { p50: result.latency.p50, p99: result.latency.p99, requestsPerSecond: result.requests.average, requests: result.requests.total, errors: result.errors, non2xx: result.non2xx }
 }
 
 /** Runs the same SQL the route runs, one statement after another, and returns per-run milliseconds. */
@@ -78,6 +78,64 @@ export async function timeSql(pool: pg.Pool, runs: number, once: (client: pg.Poo
 export function report(label: string, api: LoadResult, sql: { p50: number, p99: number }) {
   console.log(`${label}: API p50 ${api.p50} ms, p99 ${api.p99} ms, ${Math.round(api.requestsPerSecond)} req/s (errors ${api.errors}, non-2xx ${api.non2xx}); `
     + `SQL p50 ${sql.p50.toFixed(2)} ms, p99 ${sql.p99.toFixed(2)} ms; API/SQL at p50 ${(Math.max(api.p50, 0.5) / sql.p50).toFixed(1)}x`)
+}
+
+const CLOCK_TICKS_PER_SECOND = 100
+
+/** CPU seconds (user + system) each process has used so far, from /proc/<pid>/stat (fields 14 and 15). */
+function cpuSecondsByPid(pids: Iterable<number>) {
+  const seconds = new Map<number, number>()
+  for (const pid of pids) {
+    try {
+      const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').replace(/^.*\) /, '').split(' ')
+      seconds.set(pid, (Number(fields[11]) + Number(fields[12])) / CLOCK_TICKS_PER_SECOND)
+    }
+    catch { /* gone */ }
+  }
+  return seconds
+}
+
+/** A process and every process below it (the cluster's workers below its primary). */
+function processTree(root: number) {
+  const parentOf = new Map<number, number>()
+  for (const entry of readdirSync('/proc')) {
+    if (!/^\d+$/.test(entry)) continue
+    try {
+      parentOf.set(Number(entry), Number(readFileSync(`/proc/${entry}/stat`, 'utf8').replace(/^.*\) /, '').split(' ')[1]))
+    }
+    catch { /* gone */ }
+  }
+  const tree = new Set([root])
+  for (let grew = true; grew;) {
+    grew = false
+    for (const [pid, parent] of parentOf) {
+      if (tree.has(parent) && !tree.has(pid)) {
+        tree.add(pid)
+        grew = true
+      }
+    }
+  }
+  return tree
+}
+
+/**
+ * Where the CPU time of a load run goes: the server's processes, the PostgreSQL backends serving this database,
+ * and this process (the load generator). Call before the run; the returned function gives the CPU seconds of each.
+ */
+export async function cpuAccount(serverPid: number, pool: pg.Pool) {
+  const backends = async () => (await pool.query<{ pid: number }>('select pid from pg_stat_activity where datname = current_database()')).rows.map(r => r.pid)
+  const serverBefore = cpuSecondsByPid(processTree(serverPid))
+  const databaseBefore = cpuSecondsByPid(await backends())
+  const selfBefore = process.cpuUsage()
+  const sumSince = (before: Map<number, number>, after: Map<number, number>) => [...after].reduce((sum, [pid, s]) => sum + s - (before.get(pid) ?? 0), 0)
+  return async () => {
+    const self = process.cpuUsage(selfBefore)
+    return {
+      server: sumSince(serverBefore, cpuSecondsByPid(processTree(serverPid))),
+      database: sumSince(databaseBefore, cpuSecondsByPid(new Set([...databaseBefore.keys(), ...await backends()]))),
+      loadGenerator: (self.user + self.system) / 1e6,
+    }
+  }
 }
 
 /** Peak resident memory of a process so far, in MiB (VmHWM from /proc). */

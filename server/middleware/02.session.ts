@@ -16,6 +16,41 @@ function checkedByPageRequest(event: H3Event) {
   return outer?.auth && cookie && outer.authCookie === cookie ? outer : null
 }
 
+/**
+ * Unsealing the cookie (iron: two PBKDF2 keys, an HMAC and AES through WebCrypto, each a trip to libuv's thread
+ * pool) cost about as much as the session row's query (`pbkdf2` in the CPU profile of every request). The same
+ * sealed text always unseals to the same session, so that answer is kept for a minute, never beyond the seal's
+ * own age limit; the row behind it (revoked, idle, too old) is still read on every request below.
+ */
+const UNSEALED_KEEP_MS = 60_000
+const UNSEALED_MAX = 5_000
+interface UnsealedSession { id: string, createdAt: number, data: Record<string, unknown> }
+const unsealed = new Map<string, { session: UnsealedSession, until: number }>()
+
+function sessionSettings() {
+  const { name = 'h3', maxAge } = useRuntimeConfig().session as { name?: string, maxAge?: number }
+  return { name, maxAgeMs: maxAge ? maxAge * 1000 : Number.POSITIVE_INFINITY }
+}
+
+/** Hands h3 the session a sealed cookie gave a moment ago: getUserSession then finds it and unseals nothing. */
+function reuseUnsealed(event: H3Event, sealed: string | undefined, name: string) {
+  const kept = sealed ? unsealed.get(sealed) : undefined
+  if (!kept) return
+  if (kept.until < Date.now()) {
+    unsealed.delete(sealed!)
+    return
+  }
+  event.context.sessions ??= Object.create(null)
+  event.context.sessions![name] = structuredClone(kept.session)
+}
+
+function keepUnsealed(event: H3Event, sealed: string | undefined, name: string, maxAgeMs: number) {
+  const session = event.context.sessions?.[name] as UnsealedSession | undefined
+  if (!sealed || !session?.createdAt || unsealed.has(sealed)) return
+  if (unsealed.size >= UNSEALED_MAX) unsealed.delete(unsealed.keys().next().value!)
+  unsealed.set(sealed, { session: structuredClone({ id: session.id, createdAt: session.createdAt, data: session.data }), until: Math.min(Date.now() + UNSEALED_KEEP_MS, session.createdAt + maxAgeMs) })
+}
+
 export default defineEventHandler(async (event) => {
   if (event.path.startsWith('/_nuxt/') || event.path.startsWith('/__nuxt') || event.path === '/api/health') return
   // The page shell the service worker keeps for anyone: no session is read, so no cookie is set on it.
@@ -26,8 +61,13 @@ export default defineEventHandler(async (event) => {
     event.context.authCookie = outer.authCookie
     return
   }
+  const settings = sessionSettings()
+  // h3 reads a session header before the cookie: with one, h3 alone decides.
+  const sealed = getRequestHeader(event, `x-${settings.name.toLowerCase()}-session`) ? undefined : getCookie(event, settings.name)
+  reuseUnsealed(event, sealed, settings.name)
   const session = await getUserSession(event)
   if (!session.sessionId) return
+  keepUnsealed(event, sealed, settings.name, settings.maxAgeMs)
   const config = useRuntimeConfig(event)
   const [row] = await useDb().select({
     id: schema.sessions.id, createdAt: schema.sessions.createdAt, lastSeenAt: schema.sessions.lastSeenAt, revokedAt: schema.sessions.revokedAt,
@@ -39,6 +79,7 @@ export default defineEventHandler(async (event) => {
     && now - row.lastSeenAt.getTime() < Number(config.sessionIdleSeconds) * 1000
     && now - row.createdAt.getTime() < Number(config.sessionAbsoluteSeconds) * 1000
   if (!valid) {
+    if (sealed) unsealed.delete(sealed)
     await clearUserSession(event)
     return
   }

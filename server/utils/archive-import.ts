@@ -47,7 +47,7 @@ async function inBatches<T>(records: AsyncIterable<T>, write: (batch: T[]) => Pr
  * changes and every timeline entry keep their original dates, and their authors as the archive names them
  * (name, role then, e-mail) in `archive_people`, tied to this import (who imported it, when the archive was
  * made). No account is looked up or created: an entry read in is never shown as written by a local person.
- * Photo originals are copied first and removed again if the transaction fails; their sizes are made after the commit.
+ * Photo originals are copied first and removed again if the transaction fails; their sizes are made by jobs after the commit.
  */
 export async function importArchive(archive: OpenedArchive, importerId: string) {
   const fishIds = new IdMap()
@@ -55,7 +55,6 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
   const entryIds = new IdMap()
   const people = new Map<string, string>()
   const copied: string[] = []
-  const uploadIds: string[] = []
   try {
     const pondId = await useDb().transaction(async (tx) => {
       await tx.execute(sql`select set_config('fintrail.bulk_measurements', 'on', true)`)
@@ -90,12 +89,13 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
         for await (const chunk of await entryStream(archive.zip, archive.byName.get(photo.file)!)) chunks.push(chunk as Buffer)
         await useFileStorage().put(target, Buffer.concat(chunks))
         const uploadId = randomBytes(16).toString('hex')
-        uploadIds.push(uploadId)
         await tx.insert(schema.photos).values({
           id, fishId: fishIds.get(photo.fishId), importedUploaderId: author(photo.uploader), uploadId, originalName: photo.originalName, view: photo.view,
           caption: photo.caption, takenAt: photo.takenAt ? new Date(photo.takenAt) : null, state: 'pending', mime: photo.mime, bytes: photo.bytes,
           sha256: photo.sha256, createdAt: new Date(photo.createdAt),
         })
+        // Its sizes are made by a job that exists exactly when the import commits; any instance may run it.
+        await queuePhotoDerivation(id, tx)
       }
       for await (const f of records(archive, 'fish')) {
         if (f.profilePhotoId) await tx.update(schema.fish).set({ profilePhotoId: photoIds.get(f.profilePhotoId) }).where(sql`${schema.fish.id} = ${fishIds.get(f.id)}`)
@@ -137,8 +137,7 @@ export async function importArchive(archive: OpenedArchive, importerId: string) 
       await tx.execute(sql`select fintrail_refresh_measurement_summary(id) from fish where pond_id = ${newPondId}`)
       return newPondId
     })
-    // Sizes are made outside the transaction, one job at a time like uploads; a restart picks up any left pending.
-    for (const uploadId of uploadIds) void resumePendingPhoto(uploadId).catch(error => console.error('[import] photo processing failed:', error))
+    if (copied.length) wakeWorkers(PHOTO_DERIVE_JOB)
     return pondId
   }
   catch (error) {

@@ -24,12 +24,15 @@ export interface JobOptions {
 }
 
 export interface JobContext { id: string, retryCount: number, retryLimit: number, isLastAttempt: boolean }
-export type JobHandler<T> = (data: T, job: JobContext) => Promise<void>
+/** What a handler returns is kept as the job's output (read with `jobOutput`). */
+export type JobHandler<T> = (data: T, job: JobContext) => Promise<unknown>
 
 interface Registration { name: string, handler: JobHandler<never>, options: JobOptions }
 
 const JOB_DEFAULTS: Required<JobOptions> = { retryLimit: 5, retryDelay: 5, retryBackoff: true, expireInSeconds: 300, pollingIntervalSeconds: 2, concurrency: 1, policy: 'standard' }
 const registrations = new Map<string, Registration>()
+// This process's workers per job name, to wake them at once for work just sent from here.
+const workerIds = new Map<string, string[]>()
 const whenStarted: ((boss: PgBoss) => Promise<unknown>)[] = []
 let starting: Promise<PgBoss> | undefined
 let boss: PgBoss | undefined
@@ -41,9 +44,11 @@ async function startWorker(instance: PgBoss, { name, handler, options }: Registr
   await instance.updateQueue(name, { name, retryLimit: settings.retryLimit, retryDelay: settings.retryDelay, retryBackoff: settings.retryBackoff, expireInSeconds: settings.expireInSeconds })
   const work = () => instance.work<unknown>(name, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: settings.pollingIntervalSeconds }, async ([job]) => {
     if (!job) return
-    await (handler as JobHandler<unknown>)(job.data, { id: job.id, retryCount: job.retryCount, retryLimit: job.retryLimit, isLastAttempt: job.retryCount >= job.retryLimit })
+    return (handler as JobHandler<unknown>)(job.data, { id: job.id, retryCount: job.retryCount, retryLimit: job.retryLimit, isLastAttempt: job.retryCount >= job.retryLimit })
   })
-  for (let i = 0; i < Math.max(1, settings.concurrency); i++) await work()
+  const ids: string[] = []
+  for (let i = 0; i < Math.max(1, settings.concurrency); i++) ids.push(await work())
+  workerIds.set(name, ids)
 }
 
 /** The started pg-boss; the first call starts it (Nitro does not wait for async plugins). */
@@ -103,6 +108,15 @@ export function registerJob<T>(name: string, handler: JobHandler<T>, options: Jo
   if (boss) startWorker(boss, registration).catch(error => console.error(`[jobs] could not start ${name}:`, error))
 }
 
+/**
+ * Wakes this process's idle workers of `name` instead of leaving them to their next poll: for a job sent here that a
+ * person is waiting on. Any instance may still take it (the first to fetch it wins).
+ */
+export function wakeWorkers(name: string) {
+  if (!boss) return
+  for (const id of workerIds.get(name) ?? []) boss.notifyWorker(id)
+}
+
 /** A pg-boss executor that runs its statements on a Drizzle transaction (or the pool). */
 function executorFor(tx: Tx | Db): PgBoss.Db {
   return {
@@ -129,6 +143,12 @@ export async function sendJob(name: string, data: object, options: { tx?: Tx, si
   })
 }
 
+/** What a finished job's handler returned (undefined while it waits or runs, or once pg-boss has archived it). */
+export async function jobOutput(name: string, id: string): Promise<unknown> {
+  const job = await (await getBoss()).getJobById(name, id)
+  return job?.state === 'completed' ? job.output : undefined
+}
+
 function jobsSchema() {
   const name = String(useRuntimeConfig().jobsSchema || 'pgboss')
   if (!/^[a-z_][a-z0-9_]*$/.test(name)) throw new Error(`NUXT_JOBS_SCHEMA "${name}" is not a plain schema name`)
@@ -148,6 +168,7 @@ export async function stopJobs() {
   const instance = boss
   boss = undefined
   starting = undefined
+  workerIds.clear()
   // pg-boss waits at least 1 s; a job still running then is failed back to the queue ("retry") for another instance.
   const grace = Number(useRuntimeConfig().jobsStopGraceSeconds)
   await instance?.stop({ graceful: true, timeout: Number.isFinite(grace) ? grace * 1000 : 5000, wait: true })

@@ -75,7 +75,7 @@ function decodeRejection(error: unknown): PhotoRejection | null {
 
 /** Encoder settings, shared with the benchmark's ImageMagick run so both make the same files. */
 export const DERIVED_ENCODING = {
-  webp: { quality: 80, effort: 2 },
+  webp: { quality: 80, effort: 0 },
   jpeg: { quality: 82, progressive: false },
 } as const
 
@@ -84,8 +84,9 @@ export const DERIVED_ENCODING = {
  * decoding when it is at least twice that), then each smaller size is resized from the one above it,
  * and every size is written as WebP plus a JPEG fallback from the same pixels. sharp writes no metadata
  * unless asked: GPS, camera, dates and the ICC profile (converted to sRGB first) stay behind in the original.
- * WebP effort 2 (of 0-6) and a baseline JPEG: the encoders are most of the time, and effort 4 or a
- * progressive scan doubled it for files a few per cent smaller (scripts/bench/photos.ts).
+ * WebP effort 0 (of 0-6) and a baseline JPEG: the WebP encoder is most of the time. A/B on the benchmark's
+ * 12 MP photo (scripts/bench/photo-ab.ts): effort 2 took about 1.8x as long as effort 0 for files 0-6 % larger
+ * or smaller, efforts 3-4 three times as long for nothing smaller; a progressive JPEG scan doubled its encoder's time.
  */
 export async function makeDerived(originalPath: string, outDir: string): Promise<PhotoVariant[]> {
   const largest = DERIVED_SIZES.at(-1)!
@@ -111,7 +112,9 @@ export async function makeDerived(originalPath: string, outDir: string): Promise
     }
     // One output at a time: each holds a thread of the pool while it encodes.
     const webp = await pixels(current).webp(DERIVED_ENCODING.webp).toFile(join(outDir, `${longSide}.webp`))
-    const jpeg = await pixels(current).flatten({ background: '#ffffff' }).jpeg(DERIVED_ENCODING.jpeg).toFile(join(outDir, `${longSide}.jpg`))
+    // JPEG has no transparency: a PNG or WebP with an alpha channel goes on white.
+    const opaque = current.info.channels === 4 || current.info.channels === 2 ? pixels(current).flatten({ background: '#ffffff' }) : pixels(current)
+    const jpeg = await opaque.jpeg(DERIVED_ENCODING.jpeg).toFile(join(outDir, `${longSide}.jpg`))
     variants.push({ longSide, width: webp.width, height: webp.height, format: 'webp', bytes: webp.size })
     variants.push({ longSide, width: jpeg.width, height: jpeg.height, format: 'jpeg', bytes: jpeg.size })
   }

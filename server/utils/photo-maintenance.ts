@@ -142,3 +142,13 @@ export async function runPhotoMaintenance() {
   const strayFiles = await sweepStrayFiles()
   return { purged, expiredUploads, strayFiles }
 }
+
+/** The pg-boss job of the purge, sent hourly by one schedule for all instances (and once at each start). */
+export const PHOTO_PURGE_JOB = 'photos-purge'
+export const PHOTO_PURGE_CRON = '0 * * * *'
+
+export async function runPhotoPurge() {
+  const result = await runPhotoMaintenance()
+  if (result.purged || result.expiredUploads || result.strayFiles) console.log('[photos] maintenance:', JSON.stringify(result))
+  return result
+}

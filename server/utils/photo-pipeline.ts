@@ -4,6 +4,7 @@ import pLimit from 'p-limit'
 import { PHOTO_PROCESSING_CONCURRENCY } from '#shared/utils/photo-limits'
 import type { PhotoRow } from '#shared/types/rows'
 import { makeDerived, readPhotoHeader } from './photo-derive'
+import { PHOTO_DERIVE_JOB, derivationRefusal, queuePhotoDerivation } from './photo-derive-job'
 import { perProcessShare } from './process-share'
 import { PhotoRejection, sha256OfFile, sniffPhotoType } from './photo-files'
 import { derivedPrefix, originalKey, type LocalCopy } from '../storage/file-storage'
@@ -139,6 +140,8 @@ export interface FinishedUpload {
   photo: PhotoRow
   /** The same bytes were already a photo of this fish: that one is answered, nothing new is kept. */
   duplicate: boolean
+  /** The job making the sizes of a photo accepted just now. */
+  deriveJobId?: string
 }
 
 async function photoByUpload(uploadId: string) {
@@ -172,13 +175,14 @@ function isUniqueViolation(error: unknown) {
 
 /**
  * From a finished tus upload to a photo: checks that need no decoding first (type from the bytes,
- * size from the header), then the row, then the derived copies. Safe to run again for the same
- * upload (the finish hook, a restart's recovery, a retry): the upload id finds the same row.
+ * size from the header), then the row, written 'pending' together with the job that makes its sizes
+ * (server/utils/photo-derive-job.ts), which any instance may run. Safe to run again for the same upload
+ * (the finish hook, a restart's recovery, a client whose last answer was lost): the upload id finds the same row.
  */
-export function finishUpload(uploadId: string, upload: { size: number, metadata: Record<string, string | null | undefined> }) {
+export function acceptUpload(uploadId: string, upload: { size: number, metadata: Record<string, string | null | undefined> }) {
   return runPhotoJob(uploadId, async (): Promise<FinishedUpload> => {
     const existing = await photoByUpload(uploadId)
-    if (existing) return { photo: existing.state === 'pending' ? await processPhoto(existing) : existing, duplicate: false }
+    if (existing) return { photo: existing, duplicate: false }
 
     const storage = useFileStorage()
     let row: PhotoRow | undefined
@@ -196,22 +200,28 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
         await discardUpload(uploadId)
         return { photo: await keepTypedCaption(duplicate, upload.metadata.caption), duplicate: true }
       }
+      let deriveJobId: string | undefined
       try {
-        [row] = await useDb().insert(schema.photos).values({
-          fishId,
-          uploaderId: String(upload.metadata.uploaderId),
-          uploadId,
-          originalName: String(upload.metadata.filename ?? '').slice(0, 255),
-          view: (upload.metadata.view ?? 'other') as PhotoRow['view'],
-          caption: String(upload.metadata.caption ?? '').slice(0, 300),
-          takenAt: header.takenAt,
-          state: 'pending',
-          mime,
-          width: header.uprightWidth,
-          height: header.uprightHeight,
-          bytes: upload.size,
-          sha256,
-        }).returning()
+        // The row and its job commit together: no pending photo without someone to finish it.
+        row = await useDb().transaction(async (tx) => {
+          const [inserted] = await tx.insert(schema.photos).values({
+            fishId,
+            uploaderId: String(upload.metadata.uploaderId),
+            uploadId,
+            originalName: String(upload.metadata.filename ?? '').slice(0, 255),
+            view: (upload.metadata.view ?? 'other') as PhotoRow['view'],
+            caption: String(upload.metadata.caption ?? '').slice(0, 300),
+            takenAt: header.takenAt,
+            state: 'pending',
+            mime,
+            width: header.uprightWidth,
+            height: header.uprightHeight,
+            bytes: upload.size,
+            sha256,
+          }).returning()
+          deriveJobId = await queuePhotoDerivation(inserted!.id, tx) ?? undefined
+          return inserted!
+        })
       }
       catch (error) {
         // Another upload of the same bytes to this fish won the race.
@@ -221,8 +231,7 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
         await discardUpload(uploadId)
         return { photo: await keepTypedCaption(winner, upload.metadata.caption), duplicate: true }
       }
-      // processPhoto links the original first; a write that fails there marks the photo failed, not pending.
-      return { photo: await processPhoto(row!), duplicate: false }
+      return { photo: row, duplicate: false, deriveJobId }
     }
     catch (error) {
       if (error instanceof PhotoRejection) {
@@ -234,6 +243,32 @@ export function finishUpload(uploadId: string, upload: { size: number, metadata:
       await bytes?.release()
     }
   })
+}
+
+/**
+ * The upload's last request: the photo is accepted, and the answer waits a little for its sizes (made by a job,
+ * here or on another instance), so a photo is usually shown ready at once. Past `waitSeconds` it answers 'pending'
+ * and the gallery shows "preparing" until the job is done.
+ */
+export async function finishUpload(uploadId: string, upload: { size: number, metadata: Record<string, string | null | undefined> }, options: { waitSeconds?: number } = {}) {
+  const outcome = await acceptUpload(uploadId, upload)
+  if (outcome === BUSY || outcome.duplicate || outcome.photo.state !== 'pending') return outcome
+  wakeWorkers(PHOTO_DERIVE_JOB)
+  const deadline = Date.now() + (options.waitSeconds ?? 0) * 1000
+  let photo = outcome.photo
+  for (let pause = 50; photo.state === 'pending' && Date.now() < deadline; pause = Math.min(pause * 2, 400)) {
+    await new Promise(resolve => setTimeout(resolve, pause))
+    const [row] = await useDb().select().from(schema.photos).where(eq(schema.photos.id, photo.id)).limit(1)
+    if (row) {
+      photo = row
+      continue
+    }
+    // Gone while pending: the job refused the file (it cannot be decoded) and says why in its output.
+    const refusal = outcome.deriveJobId ? await derivationRefusal(outcome.deriveJobId) : undefined
+    if (refusal) throw refusal
+    if (Date.now() >= deadline) break
+  }
+  return { ...outcome, photo }
 }
 
 /** Runs processing again for a failed (or interrupted) photo; a ready one is left as it is. */

@@ -143,7 +143,9 @@ export function useTusServer(): Server {
     }),
 
     onUploadFinish: (_req, upload) => guard(async (): Promise<{ headers: Record<string, string> }> => {
-      const outcome = await finishUpload(upload.id, { size: upload.size ?? 0, metadata: upload.metadata ?? {} })
+      // The sizes are made by a job (any instance); the answer waits for them a little, then says 'pending'.
+      const waitSeconds = Number(useRuntimeConfig().photoFinishWaitSeconds)
+      const outcome = await finishUpload(upload.id, { size: upload.size ?? 0, metadata: upload.metadata ?? {} }, { waitSeconds: Number.isFinite(waitSeconds) ? waitSeconds : 30 })
       if (outcome === 'busy') return { headers: { 'Photo-State': 'pending' } }
       return { headers: { 'Photo-Id': outcome.photo.id, 'Photo-State': outcome.photo.state, 'Photo-Duplicate': outcome.duplicate ? 'yes' : 'no' } }
     }),

@@ -288,11 +288,9 @@ export function weightChangeAlert(
       const candidate = series[i]!
       if (candidate.time < to.time && (!heaviest || candidate.weightG > heaviest.weightG)) heaviest = candidate
     }
-    if (heaviest) {
-      const alert = makeAlert('loss', heaviest, to)
-      if (alert.changePercent <= -lossPercent + PERCENT_TOLERANCE) {
-        pushEpisode(lossAlerts, lossSpans, alert, [heaviest.time, to.time])
-      }
+    // The alert (and its message) is made only for a fall big enough: most weighings are not one.
+    if (heaviest && (100 * (to.weightG - heaviest.weightG)) / heaviest.weightG <= -lossPercent + PERCENT_TOLERANCE) {
+      pushEpisode(lossAlerts, lossSpans, makeAlert('loss', heaviest, to), [heaviest.time, to.time])
     }
 
     if (isGrowingAt(to)) {

@@ -5,7 +5,14 @@ export const GROWTH_CHART_POINTS_PER_SERIES = 150
 
 const lttb = createLTTB<{ index: number, t: number, v: number }>({ x: 't', y: 'v' })
 /** What the sampler reads of a measurement; the route's points carry more, and keep it. */
-export interface GrowthSample { at: string, weightG: number | null, lengthCm: number | null, conditionK: number | null }
+export interface GrowthSample {
+  at: string
+  /** `at` in ms since 1970, when the caller has it already (saves parsing each date again). */
+  time?: number
+  weightG: number | null
+  lengthCm: number | null
+  conditionK: number | null
+}
 
 const SERIES: ((p: GrowthSample) => number | null)[] = [p => p.weightG, p => p.lengthCm, p => p.conditionK]
 
@@ -21,7 +28,7 @@ export function sampleGrowthPoints<Point extends GrowthSample>(points: Point[], 
   for (const valueOf of SERIES) {
     const series = points.flatMap((p, index) => {
       const v = valueOf(p)
-      return v == null ? [] : [{ index, t: Date.parse(p.at), v }]
+      return v == null ? [] : [{ index, t: p.time ?? Date.parse(p.at), v }]
     })
     for (const chosen of series.length <= perSeries ? series : Array.from(lttb(series, perSeries))) keep.add(chosen.index)
     // downsample 1.4.0 can lose the last point to a rounding of its bucket edges; the method keeps it.

@@ -6,8 +6,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { SCREENSHOT_DIR, openBrowser, screenshots, signIn } from '../support/browser'
 import { closeTestDb } from '../support/db'
 import { createFish, createPond, signedInUser } from '../support/factories'
-import { MAIN_URL } from '../support/env'
+import { MAIN_PORT, MAIN_URL } from '../support/env'
 import { makeKoiPhoto, makeTwentyMegabyteJpeg, photoRows, tusUpload } from '../support/photos'
+import { startServer, type RunningServer } from '../support/server'
 
 let browser: BrowserContext
 let files: string
@@ -108,6 +109,53 @@ describe('photos on a fish profile, in Chromium', () => {
     await expect.poll(() => card.evaluate(img => (img as HTMLImageElement).naturalWidth)).toBeGreaterThan(0)
     await page.close()
   })
+
+  it('shows a photo whose sizes are still being made as processing, and the picture once a worker made them', async () => {
+    // A web instance that answers at once and leaves photo work to others, with a job queue of its own: the sizes
+    // are made only once a worker instance on that queue starts, so the page first sees the photo pending.
+    const queue = { NUXT_JOBS_SCHEMA: 'pgboss_preparing', NUXT_PHOTO_RECOVERY_INTERVAL_SECONDS: '0' }
+    const servers: RunningServer[] = []
+    try {
+      const web = await startServer(MAIN_PORT + 8, { ...queue, NUXT_PHOTO_DERIVE_WORKERS: '0', NUXT_PHOTO_FINISH_WAIT_SECONDS: '0' })
+      servers.push(web)
+      const { owner, fish } = await ownerWithFish('Kumo')
+      const path = join(files, 'kumo-from-above.jpg')
+      writeFileSync(path, await makeKoiPhoto(43, { width: 2400, height: 1800 }))
+      const page = await browser.newPage()
+      // The session cookie of 127.0.0.1 is sent to every port: signed in on one instance, signed in on the other.
+      await signIn(page, owner.email, owner.password)
+      const answers: string[] = []
+      page.on('response', (response) => {
+        if (response.url().includes('/api/uploads/') && response.request().method() === 'PATCH') answers.push(response.headers()['photo-state'] ?? '')
+      })
+      await page.goto(`${web.url}/fish/${fish.id}`, { waitUntil: 'networkidle' })
+      await openUploader(page)
+      await addFiles(page, [path])
+      await page.locator('.uppy-StatusBar-actionBtn--upload').click()
+      await page.locator('.uppy-StatusBar.is-complete').waitFor({ timeout: 30_000 })
+      expect(answers.at(-1)).toBe('pending')
+      await page.locator('.uppy-StatusBar-actionBtn--done').click()
+      const tile = page.locator('[data-testid^="photo-"][data-state]').first()
+      await expect.poll(() => tile.getAttribute('data-state'), { timeout: 15_000 }).toBe('pending')
+      expect(await tile.getByTestId('photo-pending').textContent()).toMatch(/Processing/)
+      expect(await page.getByTestId('reference-photo-count').textContent()).toMatch(/being prepared/)
+      await screenshots(page, 'fish-photo-processing')
+
+      servers.push(await startServer(MAIN_PORT + 9, queue))
+      // No reload: the gallery looks again by itself while a photo is pending.
+      await expect.poll(() => tile.getAttribute('data-state'), { timeout: 60_000 }).toBe('ready')
+      await expect.poll(() => tile.getByTestId('photo-thumb').evaluate(img => (img as HTMLImageElement).naturalWidth), { timeout: 15_000 }).toBeGreaterThan(0)
+      // It became the profile picture when it was ready: the portrait at the top shows it, still without a reload.
+      await expect.poll(() => page.locator('img[alt="Photo of Kumo"]').evaluate(img => (img as HTMLImageElement).naturalWidth), { timeout: 15_000 }).toBeGreaterThan(0)
+      await expect.poll(() => page.getByTestId('reference-photo-count').textContent()).toMatch(/1 photo from above/)
+      const rows = await photoRows('fish_id = $1', [fish.id])
+      expect(rows.map(row => row.state)).toEqual(['ready'])
+      await page.close()
+    }
+    finally {
+      for (const server of servers) await server.stop()
+    }
+  }, 180_000)
 
   it('says a photo added twice is already in the gallery, and stores it once', async () => {
     const { owner, fish } = await ownerWithFish('Yuki')

@@ -1,11 +1,11 @@
 import { fishIdParams, growthQuerySchema } from '#shared/utils/fish-schemas'
 import { sampleGrowthPoints } from '#shared/utils/growth-sampling'
 import { fultonK, weightChangeAlert } from '#shared/utils/condition'
-import { growthSql, type GrowthRow } from '../../../db/queries/timeline'
+import { growthSql, type GrowthEventTuple, type GrowthRow } from '../../../db/queries/timeline'
 
-function markerLabel(e: GrowthRow['events'][number]) {
-  if (e.kind === 'procedure') return [e.name || e.code?.replaceAll('_', ' '), e.side && e.side !== 'not_applicable' ? `(${e.side})` : ''].filter(Boolean).join(' ')
-  if (e.kind === 'treatment') return `${e.drug} (${String(e.route).replace('_', ' ')})`
+function markerLabel([, , kind, name, code, side, drug, route]: GrowthEventTuple) {
+  if (kind === 'procedure') return [name || code?.replaceAll('_', ' '), side && side !== 'not_applicable' ? `(${side})` : ''].filter(Boolean).join(' ')
+  if (kind === 'treatment') return `${drug} (${String(route).replace('_', ' ')})`
   return 'Died'
 }
 
@@ -21,17 +21,25 @@ export default defineEventHandler(async (event) => {
   const query = await queryValidated(event, growthQuerySchema)
   const { rows: [row] } = await useDb().execute<GrowthRow>(growthSql(fishId))
   const g = row!
-  const points = g.points.map(p => ({
-    entryId: p.entryId, at: new Date(p.at).toISOString(), weightG: p.weightG ?? null, lengthCm: p.lengthCm ?? null,
-    lengthType: p.lengthType ?? 'total', conditionK: p.weightG != null && p.lengthCm != null ? fultonK(p.weightG, p.lengthCm) : null,
+  const points = g.points.map(([entryId, atMs, weightG, lengthCm, lengthType]) => ({
+    entryId, at: new Date(atMs).toISOString(), time: atMs, weightG: weightG ?? null, lengthCm: lengthCm ?? null,
+    lengthType: lengthType ?? 'total', conditionK: weightG != null && lengthCm != null ? fultonK(weightG, lengthCm) : null,
   }))
-  const markers = [
-    ...g.events.map(e => ({ entryId: e.entryId, at: new Date(e.at).toISOString(), kind: e.kind, label: markerLabel(e) })),
-    ...g.companion_deaths.map(d => ({ entryId: d.entryId, at: new Date(d.at).toISOString(), kind: 'companion_death' as const, label: `${d.fishName} died` })),
-  ].sort((a, b) => a.at.localeCompare(b.at))
+  // Both lists come in time order; the companions' deaths (a few) are merged in by time, not by a sort of them all.
+  const markers: { entryId: string, at: string, kind: GrowthEventTuple[2] | 'companion_death', label: string, time: number }[] = g.events.map(e => ({ entryId: e[0], at: new Date(e[1]).toISOString(), kind: e[2], label: markerLabel(e), time: e[1] }))
+  for (const d of g.companion_deaths) {
+    const at = markers.findIndex(m => m.time > d.atMs)
+    markers.splice(at < 0 ? markers.length : at, 0, { entryId: d.entryId, at: new Date(d.atMs).toISOString(), kind: 'companion_death', label: `${d.fishName} died`, time: d.atMs })
+  }
   const weights = points.filter(p => p.weightG != null).map(p => ({ date: p.at, weightG: p.weightG! }))
   const alerts = weightChangeAlert(weights, fish.hatchYear != null ? { hatchYear: fish.hatchYear } : {})
   // A chart a screen wide shows a few hundred points; a life of weekly weighings is sent in full only when asked.
   const shown = query.points === 'all' ? points : sampleGrowthPoints(points)
-  return { points: shown, totalPoints: points.length, sampled: shown.length < points.length, markers, alerts }
+  return {
+    points: shown.map(({ time: _, ...p }) => p),
+    totalPoints: points.length,
+    sampled: shown.length < points.length,
+    markers: markers.map(({ time: _, ...m }) => m),
+    alerts,
+  }
 })

@@ -1,6 +1,6 @@
 import { and, desc, eq, inArray } from 'drizzle-orm'
 import { pondIdParams } from '#shared/utils/pond-schemas'
-import { POND_EVENT_KINDS, pondEventLabel } from '#shared/utils/pond-events'
+import { POND_EVENT_KINDS, pondEventLabel, type PondEventKind, type PondFishEvent } from '#shared/utils/pond-events'
 
 // The fish events of this pond for the water charts: what happened to which fish while it lived here.
 export default defineEventHandler(async (event) => {
@@ -19,8 +19,9 @@ export default defineEventHandler(async (event) => {
     .orderBy(desc(schema.timelineEntries.occurredAt))
     .limit(2000)
   return {
-    events: rows.map(r => ({
-      id: r.id, fishId: r.fishId, fishName: r.fishName, kind: r.kind,
+    // The where clause keeps only the kinds a chart marks.
+    events: rows.map((r): PondFishEvent => ({
+      id: r.id, fishId: r.fishId, fishName: r.fishName, kind: r.kind as PondEventKind,
       occurredAt: r.occurredAt.toISOString(), label: pondEventLabel(r.kind, r.data),
     })),
   }
