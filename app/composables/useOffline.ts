@@ -60,3 +60,20 @@ export function useSavedFetch<T>(url: () => string, options: { key: string, quer
   }
   return result
 }
+
+/**
+ * Fetches an answer the page does not need yet (it loads further down, when scrolled to) and keeps it on the device,
+ * once the page is idle and only online: a fish opened with a connection then shows it offline too.
+ */
+export function keepForOffline(url: () => string) {
+  if (import.meta.server) return
+  onMounted(() => {
+    const keep = () => {
+      if (!navigator.onLine || !currentAccount()) return
+      const request = url()
+      void $fetch(request).then(data => saveAnswer(answerKey(request), data)).catch(() => {})
+    }
+    if ('requestIdleCallback' in window) requestIdleCallback(keep, { timeout: 5_000 })
+    else setTimeout(keep, 2_000)
+  })
+}

@@ -2,7 +2,7 @@ import type { DetailedError } from 'tus-js-client'
 import { FetchError } from 'ofetch'
 import type { PlausibilityWarning } from '#shared/utils/plausibility'
 import { UPLOAD_CHUNK_BYTES } from '#shared/utils/photo-limits'
-import type { OutboxItem, PhotoItem } from '~/utils/outbox-items'
+import type { DoseItem, OutboxItem, PhotoItem } from '~/utils/outbox-items'
 
 // The outbox: what was written on this device and not yet accepted by the server, oldest first. It sends itself
 // when the device is online (at start, on the browser's "online" event, after each new item, and again after a
@@ -118,6 +118,7 @@ async function sendOne(item: OutboxItem): Promise<Outcome> {
   try {
     if (item.type === 'entry') await apiFetch(`/api/fish/${item.fishId}/timeline`, { method: 'POST', body: item.body })
     else if (item.type === 'water-test') await apiFetch(`/api/ponds/${item.pondId}/water-tests`, { method: 'POST', body: item.body })
+    else if (item.type === 'dose') await apiFetch(`/api/timeline/${item.entryId}/doses`, { method: 'POST', body: item.body })
     else await sendPhoto(item)
     const db = await database()
     await db?.delete('outbox', item.id)
@@ -193,14 +194,19 @@ export function sendOutbox(): Promise<void> {
     runAgain = true
     return running
   }
-  running = run().finally(() => {
+  // One sender per device: two tabs of the same account would otherwise upload the same photo side by side.
+  const send: Promise<void> = typeof navigator !== 'undefined' && navigator.locks
+    ? navigator.locks.request('fintrail-outbox', () => run()).then(() => {})
+    : run()
+  const current = send.finally(() => {
     running = null
     if (runAgain) {
       runAgain = false
       void sendOutbox()
     }
   })
-  return running
+  running = current
+  return current
 }
 
 export function forgetOutbox() {
@@ -214,7 +220,14 @@ export function useOutbox() {
   return { items, waiting, failed, count: computed(() => items.value.length) }
 }
 
-/** The items written for one fish, for its record ("waiting to send"). */
+/** The items written for one fish, for its record ("waiting to send"); doses are shown on their course instead. */
 export function useOutboxForFish(fishId: MaybeRefOrGetter<string>) {
-  return computed(() => items.value.filter(i => i.fishId === toValue(fishId)))
+  return computed(() => items.value.filter(i => i.fishId === toValue(fishId) && i.type !== 'dose'))
+}
+
+/** The doses of one treatment course ticked off on this device and not yet accepted, by dose number. */
+export function useOutboxDoses(entryId: MaybeRefOrGetter<string | undefined>) {
+  return computed(() => new Map(items.value
+    .filter((i): i is DoseItem => i.type === 'dose' && i.entryId === toValue(entryId))
+    .map(i => [i.body.doseNumber, i])))
 }

@@ -15,7 +15,8 @@ export function useFishFacts(fishId: MaybeRefOrGetter<string>) {
 
 /** The chart's sample of a long series by default; `every` (the printed record, "show every measurement") asks for all. */
 export function useFishGrowth(fishId: MaybeRefOrGetter<string>, every: MaybeRefOrGetter<boolean> = false) {
-  return useFetch<FishGrowth>(() => `/api/fish/${toValue(fishId)}/growth`, {
+  // Kept on the device: the chart opens offline from what was saved (see keepForOffline on the fish page).
+  return useSavedFetch<FishGrowth>(() => `/api/fish/${toValue(fishId)}/growth`, {
     // The printed record's full series is cached apart from the profile's sample.
     key: `fish-growth-${toValue(fishId)}${toValue(every) === true ? '-all' : ''}`,
     query: computed(() => (toValue(every) ? { points: 'all' } : {})),

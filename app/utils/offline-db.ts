@@ -12,10 +12,13 @@ const ACCOUNT_KEY = 'fintrail-account'
 const LOCAL_PREFIXES = ['fintrail-draft:', ACCOUNT_KEY]
 
 export interface SavedAnswer { key: string, data: unknown, savedAt: string }
+/** A photo as shown on a page opened with a connection (the size the browser chose), to show it again offline. */
+export interface KeptPhoto { photoId: string, image: Blob, savedAt: string }
 
 interface DeviceSchema extends DBSchema {
   saved: { key: string, value: SavedAnswer }
   outbox: { key: string, value: OutboxItem, indexes: { seq: number } }
+  photos: { key: string, value: KeptPhoto }
 }
 
 export type DeviceDb = IDBPDatabase<DeviceSchema>
@@ -40,10 +43,13 @@ export function openDeviceDb(account = currentAccount()): Promise<DeviceDb> | nu
   if (!account || typeof indexedDB === 'undefined') return null
   let db = opened.get(account)
   if (!db) {
-    db = openDB<DeviceSchema>(`${DB_PREFIX}${account}`, 1, {
-      upgrade(database) {
-        database.createObjectStore('saved', { keyPath: 'key' })
-        database.createObjectStore('outbox', { keyPath: 'id' }).createIndex('seq', 'seq')
+    db = openDB<DeviceSchema>(`${DB_PREFIX}${account}`, 2, {
+      upgrade(database, oldVersion) {
+        if (oldVersion < 1) {
+          database.createObjectStore('saved', { keyPath: 'key' })
+          database.createObjectStore('outbox', { keyPath: 'id' }).createIndex('seq', 'seq')
+        }
+        if (oldVersion < 2) database.createObjectStore('photos', { keyPath: 'photoId' })
       },
       // Another tab deleting the database (sign-out) must not wait for this one.
       blocking() {
@@ -97,6 +103,23 @@ export async function saveAnswer(key: string, data: unknown) {
 export async function savedAnswer(key: string): Promise<SavedAnswer | undefined> {
   const db = await openDeviceDb()
   return db?.get('saved', key)
+}
+
+/**
+ * Keeps the picture of a photo shown online, once per photo. The browser has just loaded it, so this reads its own
+ * HTTP cache (the photo answers are `private, max-age=86400`) rather than the network.
+ */
+export async function keepPhoto(photoId: string, url: string) {
+  const db = await openDeviceDb()
+  if (!db || await db.getKey('photos', photoId)) return
+  const response = await fetch(url, { credentials: 'same-origin' })
+  if (!response.ok || !response.headers.get('content-type')?.startsWith('image/')) return
+  await db.put('photos', { photoId, image: await response.blob(), savedAt: new Date().toISOString() })
+}
+
+export async function keptPhoto(photoId: string): Promise<Blob | undefined> {
+  const db = await openDeviceDb()
+  return (await db?.get('photos', photoId))?.image
 }
 
 /** No answer at all (no network, or the answer was lost on the way), as opposed to the server refusing. */

@@ -47,13 +47,23 @@ export interface PhotoItem extends ItemBase {
   photoId?: string
 }
 
-export type OutboxItem = EntryItem | WaterTestItem | PhotoItem
+/** A dose of a treatment course ticked off as given; `givenAt` is the moment of the tick, not of the send. */
+export interface DoseItem extends ItemBase {
+  type: 'dose'
+  fishId: string
+  /** The treatment entry whose course this dose belongs to. */
+  entryId: string
+  body: { id: string, doseNumber: number, givenAt: string }
+}
+
+export type OutboxItem = EntryItem | WaterTestItem | PhotoItem | DoseItem
 
 /** What someone can copy out of a refused item to record it another way. */
 export function itemAsText(item: OutboxItem): string {
   const lines = [`${item.label} — written on this device ${new Date(item.createdAt).toLocaleString('en-GB')}`]
   if (item.type === 'entry') lines.push(`Recorded for: ${item.body.occurredAt}`, JSON.stringify(item.body.data, null, 2))
   if (item.type === 'water-test') lines.push(JSON.stringify(item.body, null, 2))
+  if (item.type === 'dose') lines.push(`Dose ${item.body.doseNumber} given at ${item.body.givenAt}`)
   if (item.type === 'photo') lines.push(`Photo file: ${item.fileName}${item.caption ? ` — ${item.caption}` : ''}`)
   if (item.reason) lines.push(`Not sent: ${item.reason}`)
   return lines.join('\n')

@@ -15,6 +15,9 @@ export interface EntryBodyContext {
   canRecordDoses?: boolean
   /** Keys to refresh after checking off a dose. */
   refreshKeys?: string[]
+  /** The fish and its pond, for a dose ticked off with no connection (it waits in the outbox). */
+  fishId?: string
+  pondId?: string
 }
 
 /** An entry as its body needs it: kind and fields always; id, the other fish and derived facts when shown live. */

@@ -355,6 +355,8 @@ export const entryIdParams = z.object({ entryId: z.uuid('Not a valid id') })
 
 /** A dose of a treatment course checked off as given. `givenAt` defaults to now. */
 export const doseGivenSchema = z.strictObject({
+  // Made on the device (the outbox): a second send of the same tick finds the dose it already recorded.
+  id: clientEntryId,
   doseNumber: z.number('Say which dose (1 for the first)').int('A whole number').min(1, 'Dose 1 is the first'),
   givenAt: occurredAtSchema.optional(),
   note: limitedText(500).default(''),

@@ -1,3 +1,4 @@
+import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { closeTestDb, testDb } from '../support/db'
 import { addMember, createFish, createPond, pondWithRoles, signedInUser } from '../support/factories'
@@ -71,6 +72,30 @@ describe('a treatment course as a schedule', () => {
     await world.vet.client.post(`/api/timeline/${entry.id}/entered-in-error`, { reason: 'Wrong fish' })
     expect((await post({ doseNumber: 2 })).status).toBe(409)
     expect(await dosesOf(entry.id)).toEqual([1])
+  })
+
+  it('answers a second send of the same device-made dose id with the dose it recorded, once (an outbox retry after a lost answer)', async () => {
+    const fish = await createFish(world.owner.client, world.pond.id, { name: 'Retried' })
+    const { entry } = await addEntry(world.vet.client, fish.id, course(30, 3))
+    const id = randomUUID()
+    const givenAt = hoursFromNow(-1)
+    const post = (body: unknown, client = world.keeper.client) => client.post(`/api/timeline/${entry.id}/doses`, body)
+    const first = await post({ id, doseNumber: 2, givenAt, note: 'Ticked at the pond with no signal' })
+    expect(first.status, JSON.stringify(first.body)).toBe(201)
+    const again = await post({ id, doseNumber: 2, givenAt, note: 'Ticked at the pond with no signal' })
+    expect(again.status, JSON.stringify(again.body)).toBe(200)
+    expect(again.body.dose).toEqual(first.body.dose)
+    expect(again.body.dose.givenAt).toBe(givenAt)
+    const { rows } = await testDb().query('select id, dose_number, given_by_id from treatment_doses where entry_id = $1', [entry.id])
+    expect(rows).toEqual([{ id, dose_number: 2, given_by_id: world.keeper.user.id }])
+    // A fresh tick of the same dose (another id) is still "already given"; the same id cannot stand for another dose or person.
+    expect((await post({ id: randomUUID(), doseNumber: 2 })).status).toBe(409)
+    const otherDose = await post({ id, doseNumber: 3 })
+    expect(otherDose.status).toBe(409)
+    expect(otherDose.body.message).toBe('This dose id belongs to another dose')
+    expect((await post({ id, doseNumber: 2 }, world.owner.client)).status).toBe(409)
+    expect((await post({ id: 'not-an-id', doseNumber: 3 })).body.data.fieldErrors.id).toEqual(['Not a valid id'])
+    expect(await dosesOf(entry.id)).toEqual([2])
   })
 
   it('lets every member of the pond check off a dose, and nobody else', async () => {

@@ -16,19 +16,31 @@ export default defineEventHandler(async (event) => {
     throw badEntry({ doseNumber: [message] }, message)
   }
 
-  const dose = await useDb().transaction(async (tx) => {
+  const written = await useDb().transaction(async (tx) => {
     await lockFish(tx, fish.id)
     const [current] = await tx.select({ enteredInError: schema.timelineEntries.enteredInError }).from(schema.timelineEntries).where(eq(schema.timelineEntries.id, entryId))
+    // A retried send after a lost answer: the dose it already recorded is the answer (before the other checks,
+    // which that first send has changed).
+    if (input.id) {
+      const [existing] = await tx.select().from(schema.treatmentDoses).where(eq(schema.treatmentDoses.id, input.id))
+      if (existing) {
+        if (existing.entryId !== entryId || existing.givenById !== user.id || existing.doseNumber !== input.doseNumber) {
+          throw createError({ statusCode: 409, statusMessage: 'Id in use', message: 'This dose id belongs to another dose' })
+        }
+        return { row: existing, created: false }
+      }
+    }
     if (current!.enteredInError) throw createError({ statusCode: 409, statusMessage: 'Entered in error', message: 'This treatment is marked entered in error' })
     const [given] = await tx.select({ givenAt: schema.treatmentDoses.givenAt }).from(schema.treatmentDoses)
       .where(and(eq(schema.treatmentDoses.entryId, entryId), eq(schema.treatmentDoses.doseNumber, input.doseNumber)))
     if (given) throw createError({ statusCode: 409, statusMessage: 'Already given', message: `Dose ${input.doseNumber} is already recorded as given`, data: { fieldErrors: { doseNumber: ['Already recorded as given'] } } })
     const [row] = await tx.insert(schema.treatmentDoses).values({
-      entryId, doseNumber: input.doseNumber, givenAt: input.givenAt ? new Date(input.givenAt) : new Date(), givenById: user.id, note: input.note,
+      id: input.id, entryId, doseNumber: input.doseNumber, givenAt: input.givenAt ? new Date(input.givenAt) : new Date(), givenById: user.id, note: input.note,
     }).returning()
-    return row!
+    return { row: row!, created: true }
   })
-  setResponseStatus(event, 201)
+  setResponseStatus(event, written.created ? 201 : 200)
+  const dose = written.row
   return {
     dose: { doseNumber: dose.doseNumber, givenAt: dose.givenAt.toISOString(), givenBy: { id: user.id, name: user.name }, note: dose.note },
     entry: await entryView(entryId, { species: fish.species, userId: user.id, role }),
