@@ -62,6 +62,8 @@ async function main() {
     deviceScaleFactor: 2,
     isMobile: true,
     hasTouch: true,
+    // A service worker installed on the first page would cache every script, and the later pages would show a warm cache.
+    serviceWorkers: 'block',
   })
   try {
     const cookie = await signInCookie(server.url, EMAIL)
