@@ -12,6 +12,22 @@ async function keptUser(): Promise<CurrentUser | null> {
   }
 }
 
+/**
+ * The signed-in person, as /api/me answers. On the server the page request has usually read its session already
+ * (server/middleware/02.session.ts): asking /api/me was an inner request through the whole h3 stack for what is
+ * on the request's context (`requireUser` answers that same object, written out as JSON). Only a request that
+ * carries a cookie the context says nothing about still asks.
+ */
+async function currentUser(): Promise<CurrentUser | null> {
+  if (import.meta.server) {
+    const event = useRequestEvent()
+    const user = (event?.context as { auth?: { user?: CurrentUser } } | undefined)?.auth?.user
+    if (user) return JSON.parse(JSON.stringify(user)) as CurrentUser
+    if (!useRequestHeaders(['cookie']).cookie) return null
+  }
+  return await useRequestFetch()<CurrentUser>('/api/me')
+}
+
 export const useSessionStore = defineStore('session', {
   state: () => ({ user: null as CurrentUser | null, loaded: false }),
   getters: {
@@ -22,7 +38,7 @@ export const useSessionStore = defineStore('session', {
   actions: {
     async load() {
       try {
-        this.user = await useRequestFetch()<CurrentUser>('/api/me')
+        this.user = await currentUser()
         await this.keepOnDevice()
       }
       catch (error) {
