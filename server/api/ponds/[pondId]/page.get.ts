@@ -1,17 +1,19 @@
-import pondRoute from './index.get'
-import dueRoute from './due.get'
-import eventsRoute from './events/index.get'
-import fishRoute from './fish/index.get'
-import visitsRoute from './visits/index.get'
+import { fishListQuerySchema } from '#shared/utils/fish-schemas'
+import { pondIdParams } from '#shared/utils/pond-schemas'
 
 /**
  * What the pond page shows when it opens, in one answer, for its server render: asked for one by one, each part was
- * an inner request through the whole h3 stack. Each part is its own route's handler run on this request, so access
- * is checked and the answer shaped exactly as there. The query is the fish list's.
+ * an inner request through the whole h3 stack that checked access again. Access is decided once here, as each
+ * part's own route decides it, and each part is what that route answers (the same functions). The query is the
+ * fish list's.
  */
 export default defineEventHandler(async (event) => {
+  const { pondId } = paramsValidated(event, pondIdParams, 'Pond not found')
+  const { role, readOnly } = await requirePondRole(event, pondId)
+  const query = await queryValidated(event, fishListQuerySchema)
   const [pond, fish, visits, events, due] = await Promise.all([
-    pondRoute(event), fishRoute(event), visitsRoute(event), eventsRoute(event), dueRoute(event),
+    pondDetail(pondId, role, readOnly), listFish(pondId, query), visitsOfPond(pondId),
+    pondEventViews(pondId), dueDetails({ pondId }, serverNow(event), null),
   ])
-  return { pond, fish, visits, events, due }
+  return { pond, fish, visits, events: { events }, due: { items: due } }
 })
