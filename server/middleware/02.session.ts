@@ -1,8 +1,5 @@
-import { eq } from 'drizzle-orm'
 import type { H3Event, H3EventContext } from 'h3'
-
-// Reads the session row behind the cookie on every request: revoked, idle or too old sessions end here.
-const TOUCH_AFTER_MS = 60_000
+import { accessStatements } from '../db/queries/access'
 
 /**
  * A page's server render asks our own API for its data through inner requests (Nitro's local fetch) that
@@ -16,41 +13,21 @@ function checkedByPageRequest(event: H3Event) {
   return outer?.auth && cookie && outer.authCookie === cookie ? outer : null
 }
 
-/**
- * Unsealing the cookie (iron: two PBKDF2 keys, an HMAC and AES through WebCrypto, each a trip to libuv's thread
- * pool) cost about as much as the session row's query (`pbkdf2` in the CPU profile of every request). The same
- * sealed text always unseals to the same session, so that answer is kept for a minute, never beyond the seal's
- * own age limit; the row behind it (revoked, idle, too old) is still read on every request below.
- */
-const UNSEALED_KEEP_MS = 60_000
-const UNSEALED_MAX = 5_000
-interface UnsealedSession { id: string, createdAt: number, data: Record<string, unknown> }
-const unsealed = new Map<string, { session: UnsealedSession, until: number }>()
-
 function sessionSettings() {
   const { name = 'h3', maxAge } = useRuntimeConfig().session as { name?: string, maxAge?: number }
   return { name, maxAgeMs: maxAge ? maxAge * 1000 : Number.POSITIVE_INFINITY }
 }
 
-/** Hands h3 the session a sealed cookie gave a moment ago: getUserSession then finds it and unseals nothing. */
-function reuseUnsealed(event: H3Event, sealed: string | undefined, name: string) {
-  const kept = sealed ? unsealed.get(sealed) : undefined
-  if (!kept) return
-  if (kept.until < Date.now()) {
-    unsealed.delete(sealed!)
-    return
-  }
-  event.context.sessions ??= Object.create(null)
-  event.context.sessions![name] = structuredClone(kept.session)
-}
+/**
+ * The hot reads (a fish, its growth and timeline; a pond and its fish list): GET routes whose first database
+ * work is requireFishRole or requirePondRole. Their access statement reads the session row too
+ * (server/db/queries/access.ts), so such a request costs one round trip to PostgreSQL before its own query
+ * instead of two. A route added here must call one of the two before anything that needs the user.
+ */
+const READS_CHECKING_THE_SESSION_THEMSELVES = /^\/api\/(?:fish\/[^/?]+(?:\/growth|\/timeline)?|ponds\/[^/?]+(?:\/fish)?)(?:\?|$)/
 
-function keepUnsealed(event: H3Event, sealed: string | undefined, name: string, maxAgeMs: number) {
-  const session = event.context.sessions?.[name] as UnsealedSession | undefined
-  if (!sealed || !session?.createdAt || unsealed.has(sealed)) return
-  if (unsealed.size >= UNSEALED_MAX) unsealed.delete(unsealed.keys().next().value!)
-  unsealed.set(sealed, { session: structuredClone({ id: session.id, createdAt: session.createdAt, data: session.data }), until: Math.min(Date.now() + UNSEALED_KEEP_MS, session.createdAt + maxAgeMs) })
-}
-
+// Reads the session row behind the cookie on every request (here, or in the hot reads' access statement):
+// revoked, idle or too old sessions end there.
 export default defineEventHandler(async (event) => {
   if (event.path.startsWith('/_nuxt/') || event.path.startsWith('/__nuxt') || event.path === '/api/health') return
   // The page shell the service worker keeps for anyone: no session is read, so no cookie is set on it.
@@ -64,28 +41,14 @@ export default defineEventHandler(async (event) => {
   const settings = sessionSettings()
   // h3 reads a session header before the cookie: with one, h3 alone decides.
   const sealed = getRequestHeader(event, `x-${settings.name.toLowerCase()}-session`) ? undefined : getCookie(event, settings.name)
-  reuseUnsealed(event, sealed, settings.name)
+  reuseUnsealedSession(event, sealed, settings.name)
   const session = await getUserSession(event)
   if (!session.sessionId) return
-  keepUnsealed(event, sealed, settings.name, settings.maxAgeMs)
-  const config = useRuntimeConfig(event)
-  const [row] = await useDb().select({
-    id: schema.sessions.id, createdAt: schema.sessions.createdAt, lastSeenAt: schema.sessions.lastSeenAt, revokedAt: schema.sessions.revokedAt,
-    user: { id: schema.users.id, name: schema.users.name, email: schema.users.email, units: schema.users.units, decimalMark: schema.users.decimalMark },
-  }).from(schema.sessions).innerJoin(schema.users, eq(schema.users.id, schema.sessions.userId))
-    .where(eq(schema.sessions.id, session.sessionId)).limit(1)
-  const now = Date.now()
-  const valid = row && !row.revokedAt
-    && now - row.lastSeenAt.getTime() < Number(config.sessionIdleSeconds) * 1000
-    && now - row.createdAt.getTime() < Number(config.sessionAbsoluteSeconds) * 1000
-  if (!valid) {
-    if (sealed) unsealed.delete(sealed)
-    await clearUserSession(event)
+  keepUnsealedSession(event, sealed, settings.name, settings.maxAgeMs)
+  if (event.method === 'GET' && READS_CHECKING_THE_SESSION_THEMSELVES.test(event.path)) {
+    event.context.sessionToCheck = { id: session.sessionId, sealed }
     return
   }
-  event.context.auth = { sessionId: row.id, user: row.user }
-  event.context.authCookie = getHeader(event, 'cookie')
-  if (now - row.lastSeenAt.getTime() > TOUCH_AFTER_MS) {
-    await useDb().update(schema.sessions).set({ lastSeenAt: new Date(now) }).where(eq(schema.sessions.id, row.id))
-  }
+  const [row] = await accessStatements(useDb()).session.execute({ sessionId: session.sessionId })
+  await acceptSessionRow(event, row, sealed)
 })

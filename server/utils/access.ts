@@ -2,6 +2,7 @@ import type { H3Event } from 'h3'
 import { and, eq } from 'drizzle-orm'
 import type { PondRole, CurrentUser } from '#shared/types'
 import { POND_ROLES } from '#shared/utils/enums'
+import { accessStatements } from '../db/queries/access'
 
 export const ANY_ROLE: readonly PondRole[] = POND_ROLES
 
@@ -49,10 +50,29 @@ function decide<T extends { role: PondRole, readOnly: boolean }>(event: H3Event,
 }
 
 /**
+ * On the hot reads the session row is left to the access statement (server/middleware/02.session.ts): it is
+ * checked first, exactly as the middleware would (no valid session: 401 before any 403 or 404), then the
+ * membership found in the same row is decided on.
+ */
+function takeSessionToCheck(event: H3Event) {
+  const pending = event.context.auth ? undefined : event.context.sessionToCheck
+  event.context.sessionToCheck = undefined
+  return pending
+}
+
+/**
  * The one place pond access is decided. The role is read from the database on every call,
  * so a removed member is refused on their very next request. Non-members get 404, like a pond that does not exist.
  */
 export async function requirePondRole(event: H3Event, pondId: string, roles: readonly PondRole[] = ANY_ROLE) {
+  const pending = takeSessionToCheck(event)
+  if (pending) {
+    const [row] = await accessStatements(useDb()).pond.execute({ sessionId: pending.id, pondId })
+    await acceptSessionRow(event, row, pending.sealed)
+    const user = requireUser(event)
+    const { role, readOnly } = decide(event, row?.role ? { role: row.role, readOnly: row.readOnly! } : undefined, 'Pond', roles)
+    return { user, role, readOnly }
+  }
   const user = requireUser(event)
   const [membership] = await useDb().select(membershipColumns)
     .from(schema.memberships)
@@ -71,6 +91,16 @@ export interface FishAccess {
 
 /** Same rule for a fish: it is visible only through a membership of the pond it lives in. */
 export async function requireFishRole(event: H3Event, fishId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<FishAccess & { pondName: string }> {
+  const pending = takeSessionToCheck(event)
+  if (pending) {
+    const [row] = await accessStatements(useDb()).fish.execute({ sessionId: pending.id, fishId })
+    await acceptSessionRow(event, row, pending.sealed)
+    const user = requireUser(event)
+    // Only a member's row counts: the fish of another pond is refused as if it did not exist.
+    const found = row?.fish && row.role ? { fish: row.fish, role: row.role, readOnly: row.readOnly!, pondName: row.pondName! } : undefined
+    const { fish, role, readOnly, pondName } = decide(event, found, 'Fish', roles)
+    return { user, role, readOnly, fish, pondName }
+  }
   const user = requireUser(event)
   // The pond's name comes in the same statement: the profile shows it, and a second round trip cost more than the join.
   const [row] = await useDb().select({ fish: schema.fish, ...membershipColumns, pondName: schema.ponds.name })

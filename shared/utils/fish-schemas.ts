@@ -66,6 +66,7 @@ export const fishIdParams = z.object({ fishId: z.uuid('Not a valid id') })
 /** The growth series: a chart-sized sample by default, every measurement with `points=all`. */
 export const growthQuerySchema = z.strictObject({
   points: z.enum(['chart', 'all'], 'Either chart or all').optional(),
+  markers: z.enum(['chart', 'all'], 'Either chart or all').optional(),
 })
 
 /** Turns the form's "estimated age" into the stored hatch year, marked as an estimate. */

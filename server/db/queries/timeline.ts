@@ -203,14 +203,28 @@ export function standingFactsSql(fishId: string, today: string, recentFrom: stri
 
 /** A measurement as the growth query sends it: entry id, time in ms since 1970, weight g, length cm, length type. */
 export type GrowthPointTuple = [entryId: string, atMs: number, weightG: number | null, lengthCm: number | null, lengthType: string | null]
-/** An entry marked on the growth chart's time axis, with the fields its label is made of. */
-export type GrowthEventTuple = [entryId: string, atMs: number, kind: 'procedure' | 'treatment' | 'death', name: string | null, code: string | null, side: string | null, drug: string | null, route: string | null]
+/**
+ * An entry marked on the growth chart's time axis, with the fields its label is made of, and how many entries of its
+ * kind it stands for (1, or with a thinned series every entry of that kind in its stretch of time, itself included).
+ */
+export type GrowthEventTuple = [entryId: string, atMs: number, kind: 'procedure' | 'treatment' | 'death', name: string | null, code: string | null, side: string | null, drug: string | null, route: string | null, standsFor: number]
 
 export interface GrowthRow extends Record<string, unknown> {
   points: GrowthPointTuple[]
   events: GrowthEventTuple[]
+  /** Every procedure, treatment and death of the fish, whether marked one by one or not. */
+  events_total: number
   companion_deaths: { entryId: string, atMs: number, fishName: string }[]
 }
+
+/**
+ * Up to this many procedures, treatments and deaths are all marked. Beyond it the fish's marked span is cut into
+ * GROWTH_MARKER_STRETCHES equal stretches of time, and each stretch keeps its first procedure and first treatment
+ * (standing for the rest of that kind there, counted); deaths are always marked. A chart a phone wide has room for
+ * about 17 badges 20 px apart; one procedure and one treatment per stretch stays readable on a wide screen too.
+ */
+export const GROWTH_MARKERS_IN_FULL = 48
+export const GROWTH_MARKER_STRETCHES = 24
 
 // Whole milliseconds since 1970 as a float8 (what a JS Date holds): cheaper to write than a timestamp's text
 // or extract()'s numeric. Truncated to the millisecond first, as parsing the timestamp's text did.
@@ -220,17 +234,45 @@ const epochMs = (column: string) => sql.raw(`round(date_part('epoch', date_trunc
  * The measurements for the growth chart, and the entries that matter marked on its time axis. Each row is a
  * JSON array, not an object: a life of weekly weighings is 1,250 rows here, and writing and reading the key
  * names and timestamp texts of each was most of the query's and the route's time (EXPLAIN ANALYZE, --cpu-prof).
+ * The markers are thinned here, before any JSON is built (`markers: 'all'` keeps every one): with 625 procedures
+ * and 625 treatments, building and sending every marker was most of what was left (EXPLAIN ANALYZE).
  */
-export function growthSql(fishId: string) {
-  return sql<GrowthRow>`select
+export function growthSql(fishId: string, options: { markers?: 'chart' | 'all' } = {}) {
+  const markedKinds = sql`e.fish_id = ${fishId} and e.kind in ('procedure', 'treatment', 'death') and ${valid}`
+  const labelFields = (alias: string) => sql.raw(`${alias}.data->>'name', ${alias}.data->>'code', ${alias}.data->>'side', ${alias}.data->>'drug', ${alias}.data->>'route'`)
+  const events = options.markers === 'all'
+    ? sql`(select coalesce(json_agg(json_build_array(e.id, ${epochMs('e.occurred_at')}, e.kind, ${labelFields('e')}, 1) order by e.occurred_at, e.id), '[]'::json)
+        from timeline_entries e where ${markedKinds}) as events,
+      (select count(*)::int from timeline_entries e where ${markedKinds}) as events_total`
+    // Only the kept entries' data is read, by id (`offset 0` keeps it a lookup per kept entry: as a join, the
+    // planner hashed the whole table); carried through the windows' sort, the data doubled its time.
+    : sql`(select coalesce(json_agg(json_build_array(e.id, ${epochMs('e.occurred_at')}, e.kind, ${labelFields('x')},
+          case when e.total <= ${GROWTH_MARKERS_IN_FULL} then 1 else e.stands_for end) order by e.occurred_at, e.id), '[]'::json)
+        from stretches e
+        cross join lateral (select x.data from timeline_entries x where x.id = e.id offset 0) x
+        where e.total <= ${GROWTH_MARKERS_IN_FULL} or e.nth = 1) as events,
+      (select count(*)::int from marked) as events_total`
+  const stretches = options.markers === 'all'
+    ? sql``
+    : sql`with marked as (
+        select e.id, e.kind, e.occurred_at, count(*) over () as total,
+          width_bucket(date_part('epoch', e.occurred_at), date_part('epoch', min(e.occurred_at) over ()),
+            date_part('epoch', max(e.occurred_at) over ()) + 1, ${GROWTH_MARKER_STRETCHES}) as stretch
+        from timeline_entries e
+        where ${markedKinds}),
+      stretches as (
+        -- A death stands alone: it is never folded into another.
+        select m.id, m.kind, m.occurred_at, m.total, row_number() over same as nth, count(*) over same as stands_for
+        from marked m
+        window same as (partition by m.kind, m.stretch, case when m.kind = 'death' then m.id end order by m.occurred_at, m.id
+          rows between unbounded preceding and unbounded following))`
+  return sql<GrowthRow>`${stretches}
+    select
     (select coalesce(json_agg(json_build_array(e.id, ${epochMs('e.occurred_at')}, e.data->'weightG', e.data->'lengthCm', e.data->>'lengthType')
           order by e.occurred_at, e.id), '[]'::json)
       from timeline_entries e
       where e.fish_id = ${fishId} and e.kind = 'measurement' and ${valid}) as points,
-    (select coalesce(json_agg(json_build_array(e.id, ${epochMs('e.occurred_at')}, e.kind,
-          e.data->>'name', e.data->>'code', e.data->>'side', e.data->>'drug', e.data->>'route') order by e.occurred_at, e.id), '[]'::json)
-      from timeline_entries e
-      where e.fish_id = ${fishId} and e.kind in ('procedure', 'treatment', 'death') and ${valid}) as events,
+    ${events},
     (select coalesce(json_agg(json_build_object('entryId', d.id, 'atMs', ${epochMs('d.occurred_at')}, 'fishName', o.name) order by d.occurred_at), '[]'::json)
       from (select distinct case when c.fish_id = ${fishId} then c.related_fish_id else c.fish_id end as other_id
             from timeline_entries c
