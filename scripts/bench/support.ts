@@ -27,7 +27,9 @@ export async function startBenchServer(port: number, extraEnv: Record<string, st
     env: {
       ...process.env, NODE_ENV: 'production', HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', PORT: String(port), NITRO_PORT: String(port),
       NUXT_DATABASE_URL: process.env.DATABASE_URL, NUXT_SESSION_COOKIE_SECURE: 'false', NUXT_APP_ORIGIN: `http://127.0.0.1:${port}`,
-      NUXT_STORAGE_DIR: process.env.BENCH_STORAGE_DIR, FINTRAIL_WORKERS: String(workers), ...extraEnv,
+      NUXT_STORAGE_DIR: process.env.BENCH_STORAGE_DIR, FINTRAIL_WORKERS: String(workers),
+      // As scripts/lib/common.sh sets it for every server start (photo processing; see there).
+      MALLOC_ARENA_MAX: process.env.MALLOC_ARENA_MAX ?? '2', ...extraEnv,
     },
     stdio: ['ignore', 'inherit', 'inherit'],
   })

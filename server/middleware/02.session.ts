@@ -1,5 +1,5 @@
 import type { H3Event, H3EventContext } from 'h3'
-import { sessionRowQuery } from '../db/queries/access'
+import { accessStatements } from '../db/queries/access'
 
 /**
  * A page's server render asks our own API for its data through inner requests (Nitro's local fetch) that
@@ -49,6 +49,6 @@ export default defineEventHandler(async (event) => {
     event.context.sessionToCheck = { id: session.sessionId, sealed }
     return
   }
-  const [row] = await sessionRowQuery(useDb(), session.sessionId)
+  const [row] = await accessStatements(useDb()).session.execute({ sessionId: session.sessionId })
   await acceptSessionRow(event, row, sealed)
 })

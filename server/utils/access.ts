@@ -2,7 +2,7 @@ import type { H3Event } from 'h3'
 import { and, eq } from 'drizzle-orm'
 import type { PondRole, CurrentUser } from '#shared/types'
 import { POND_ROLES } from '#shared/utils/enums'
-import { fishAccessWithSessionQuery, pondAccessWithSessionQuery } from '../db/queries/access'
+import { accessStatements } from '../db/queries/access'
 
 export const ANY_ROLE: readonly PondRole[] = POND_ROLES
 
@@ -67,7 +67,7 @@ function takeSessionToCheck(event: H3Event) {
 export async function requirePondRole(event: H3Event, pondId: string, roles: readonly PondRole[] = ANY_ROLE) {
   const pending = takeSessionToCheck(event)
   if (pending) {
-    const [row] = await pondAccessWithSessionQuery(useDb(), pending.id, pondId)
+    const [row] = await accessStatements(useDb()).pond.execute({ sessionId: pending.id, pondId })
     await acceptSessionRow(event, row, pending.sealed)
     const user = requireUser(event)
     const { role, readOnly } = decide(event, row?.role ? { role: row.role, readOnly: row.readOnly! } : undefined, 'Pond', roles)
@@ -93,7 +93,7 @@ export interface FishAccess {
 export async function requireFishRole(event: H3Event, fishId: string, roles: readonly PondRole[] = ANY_ROLE): Promise<FishAccess & { pondName: string }> {
   const pending = takeSessionToCheck(event)
   if (pending) {
-    const [row] = await fishAccessWithSessionQuery(useDb(), pending.id, fishId)
+    const [row] = await accessStatements(useDb()).fish.execute({ sessionId: pending.id, fishId })
     await acceptSessionRow(event, row, pending.sealed)
     const user = requireUser(event)
     // Only a member's row counts: the fish of another pond is refused as if it did not exist.

@@ -34,6 +34,8 @@ export async function startServer(port: number, extraEnv: Record<string, string 
     NUXT_TRUST_PROXY: 'true',
     NUXT_SIGN_IN_IP_LIMIT: '30',
     NUXT_TEST_CLOCK: testClockSecret(),
+    // As scripts/lib/common.sh sets it for every server start (photo processing; see there).
+    MALLOC_ARENA_MAX: process.env.MALLOC_ARENA_MAX ?? '2',
   }
   // A server with storage of its own keeps its jobs to itself: a job names files only its own storage holds,
   // and the shared test database would otherwise hand it to the main test server.
