@@ -224,6 +224,8 @@ export interface GrowthRow extends Record<string, unknown> {
  * about 17 badges 20 px apart; one procedure and one treatment per stretch stays readable on a wide screen too.
  */
 export const GROWTH_MARKERS_IN_FULL = 48
+/** The growth statement's names as a prepared statement, one per text (the markers' two forms differ). */
+export const GROWTH_STATEMENT_NAMES = { chart: 'growth_chart', all: 'growth_all' } as const
 export const GROWTH_MARKER_STRETCHES = 24
 
 // Whole milliseconds since 1970 as a float8 (what a JS Date holds): cheaper to write than a timestamp's text
