@@ -85,7 +85,7 @@ export function report(label: string, api: LoadResult, sql: { p50: number, p99: 
 const CLOCK_TICKS_PER_SECOND = 100
 
 /** CPU seconds (user + system) each process has used so far, from /proc/<pid>/stat (fields 14 and 15). */
-function cpuSecondsByPid(pids: Iterable<number>) {
+export function cpuSecondsByPid(pids: Iterable<number>) {
   const seconds = new Map<number, number>()
   for (const pid of pids) {
     try {

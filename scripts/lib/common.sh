@@ -6,8 +6,9 @@ STORAGE_DIR="$ROOT/storage"
 
 # glibc gives each of libuv's pool threads a malloc arena of its own, and sharp's steps of one photo land on
 # different threads: each arena grew and gave back its own copy of the pixel buffers. Two arenas (one per photo
-# processed at once) measured 5-10 % less CPU per photo, a fifth to a tenth of the page faults and 90 MB less
-# memory (scripts/bench/photos.ts; jemalloc was slower here). Every server start (start, test, bench) inherits it.
+# processed at once) measured 10-15 % less CPU for one photo's sizes, a third to a tenth of the page faults and
+# 90 MB less peak memory; ten photos at once through the server cost the same CPU either way
+# (scripts/bench/photos.ts; jemalloc was slower here). Every server start (start, test, bench) inherits it.
 export MALLOC_ARENA_MAX="${MALLOC_ARENA_MAX:-2}"
 
 say() { printf '==> %s\n' "$*"; }

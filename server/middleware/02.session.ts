@@ -18,13 +18,16 @@ function sessionSettings() {
   return { name, maxAgeMs: maxAge ? maxAge * 1000 : Number.POSITIVE_INFINITY }
 }
 
+// Ids only (UUIDs), so a fixed route added beside them later (/api/fish/search) is never taken for one.
+const ID = '[0-9a-fA-F]{8}-[0-9a-fA-F]{4}-[0-9a-fA-F]{4}-[0-9a-fA-F]{4}-[0-9a-fA-F]{12}'
+
 /**
  * The hot reads (a fish, its growth and timeline; a pond and its fish list): GET routes whose first database
  * work is requireFishRole or requirePondRole. Their access statement reads the session row too
  * (server/db/queries/access.ts), so such a request costs one round trip to PostgreSQL before its own query
  * instead of two. A route added here must call one of the two before anything that needs the user.
  */
-const READS_CHECKING_THE_SESSION_THEMSELVES = /^\/api\/(?:fish\/[^/?]+(?:\/growth|\/timeline)?|ponds\/[^/?]+(?:\/fish)?)(?:\?|$)/
+const READS_CHECKING_THE_SESSION_THEMSELVES = new RegExp(`^/api/(?:fish/${ID}(?:/growth|/timeline)?|ponds/${ID}(?:/fish)?)(?:\\?|$)`)
 
 // Reads the session row behind the cookie on every request (here, or in the hot reads' access statement):
 // revoked, idle or too old sessions end there.
