@@ -12,6 +12,10 @@ import { cpuAccount, load, type LoadResult, ms, record, sequentialTimes, signInC
 
 const PORT = Number(process.env.BENCH_PORT ?? 3530)
 const REQUESTS = Number(process.env.BENCH_REQUESTS ?? 400)
+// A page's first requests after the server starts pay for compiling and loading its code (the first one
+// takes ~0.5 s, the next hundred are 20-50 % slower than later ones). The goals are judged on a server past
+// that, as one serving a pond's people all day is; the first hundred are timed on their own and shown beside.
+const PAGE_WARMUP = Number(process.env.BENCH_PAGE_WARMUP ?? 100)
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10)
 const EMAIL = 'bench-pond-side@example.com'
 const pool = new pg.Pool({ connectionString: process.env.DATABASE_URL, max: 4 })
@@ -47,13 +51,15 @@ async function main() {
     const fishAccessSql = 'select f.*, m.role, m.read_only, p.name from fish f join memberships m on m.pond_id = f.pond_id and m.user_id = $2 join ponds p on p.id = f.pond_id where f.id = $1 limit 1'
     console.log(`Pond side, one connection, ${REQUESTS} requests each (timed here), SQL timed alone on one connection:`)
 
-    const profile = await sequentialTimes(`${server.url}/fish/${fishId}`, headers, REQUESTS / 2)
+    const profileCold = await sequentialTimes(`${server.url}/fish/${fishId}`, headers, PAGE_WARMUP, 0)
+    const profile = await sequentialTimes(`${server.url}/fish/${fishId}`, headers, REQUESTS)
     const size = await pageSize(`${server.url}/fish/${fishId}`, cookie)
-    record({ what: `fish profile page GET /fish/:id, ${BUSY_FISH_ENTRIES} entries, 1 connection`, figure: `p50 ${ms(profile.p50)}, p99 ${ms(profile.p99)}, ${profile.requestsPerSecond.toFixed(0)}/s`, comparison: 'before issue 11: p99 113 ms', goal: 'p99 ≤ 40 ms', met: profile.p99 <= 40 && !profile.failures })
+    record({ what: `fish profile page GET /fish/:id, ${BUSY_FISH_ENTRIES} entries, 1 connection, ${REQUESTS} requests after ${PAGE_WARMUP}`, figure: `p50 ${ms(profile.p50)}, p90 ${ms(profile.p90)}, p99 ${ms(profile.p99)}, ${profile.requestsPerSecond.toFixed(0)}/s`, comparison: `first ${PAGE_WARMUP} after start: p50 ${ms(profileCold.p50)}, p99 ${ms(profileCold.p99)}; before issue 11: p99 113 ms`, goal: 'p99 ≤ 40 ms', met: profile.p99 <= 40 && !profile.failures })
     record({ what: 'fish profile page HTML', figure: `${kb(size.bytes)} (payload ${kb(size.payloadBytes)}), ${kb(size.brotliBytes)} brotli`, comparison: 'before issue 11: 179 KB', goal: '≤ 60 KB', met: size.bytes <= 60 * 1024 })
 
-    const pond = await sequentialTimes(`${server.url}/ponds/${tenFishPondId}`, headers, REQUESTS / 2)
-    record({ what: 'pond page GET /ponds/:id, 10 fish, 1 connection', figure: `p50 ${ms(pond.p50)}, p99 ${ms(pond.p99)}, ${pond.requestsPerSecond.toFixed(0)}/s`, comparison: 'before issue 11: p99 75 ms', goal: 'p99 ≤ 25 ms', met: pond.p99 <= 25 && !pond.failures })
+    const pondCold = await sequentialTimes(`${server.url}/ponds/${tenFishPondId}`, headers, PAGE_WARMUP, 0)
+    const pond = await sequentialTimes(`${server.url}/ponds/${tenFishPondId}`, headers, REQUESTS)
+    record({ what: `pond page GET /ponds/:id, 10 fish, 1 connection, ${REQUESTS} requests after ${PAGE_WARMUP}`, figure: `p50 ${ms(pond.p50)}, p90 ${ms(pond.p90)}, p99 ${ms(pond.p99)}, ${pond.requestsPerSecond.toFixed(0)}/s`, comparison: `first ${PAGE_WARMUP} after start: p50 ${ms(pondCold.p50)}, p99 ${ms(pondCold.p99)}; before issue 11: p99 75 ms`, goal: 'p99 ≤ 25 ms', met: pond.p99 <= 25 && !pond.failures })
 
     const api = await sequentialTimes(`${server.url}/api/fish/${fishId}`, { cookie, 'accept-encoding': 'gzip, br' }, REQUESTS * 2)
     const apiSql = await timeSql(pool, 1000, c => c.query(routeAccess))
@@ -71,7 +77,7 @@ async function main() {
       await c.query({ name: GROWTH_STATEMENT_NAMES.chart, text: growthQuery.sql, values: growthQuery.params })
     })
     record({ what: `GET /api/fish/:id/growth, ${BUSY_FISH_ENTRIES / 4} weighings (chart sample), 1 connection`, figure: `p50 ${ms(growth.p50)}, p99 ${ms(growth.p99)}`, comparison: `its SQL p50 ${ms(growthSqlTimes.p50)}, p99 ${ms(growthSqlTimes.p99)}; every point and marker (?points=all&markers=all) p99 ${ms(growthAll.p99)}; before issue 11: p99 76 ms`, goal: 'p99 ≤ 30 ms', met: growth.p99 <= 30 && !growth.failures })
-    console.log(`(failures: profile ${profile.failures}, pond ${pond.failures}, api ${api.failures}, growth ${growth.failures})`)
+    console.log(`(failures: profile ${profile.failures + profileCold.failures}, pond ${pond.failures + pondCold.failures}, api ${api.failures}, growth ${growth.failures})`)
 
     // Single process against one per core, the same pond list at ten connections. Both servers run side by side
     // (the cluster on the next port) and are warmed up with the same load first (a fresh process compiles its

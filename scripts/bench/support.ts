@@ -191,7 +191,7 @@ export async function sequentialTimes(url: string, headers: Record<string, strin
   }
   const seconds = (performance.now() - started) / 1000
   agent.destroy()
-  return { p50: percentileOf(times, 0.5), p99: percentileOf(times, 0.99), requestsPerSecond: requests / seconds, failures }
+  return { p50: percentileOf(times, 0.5), p90: percentileOf(times, 0.9), p99: percentileOf(times, 0.99), requestsPerSecond: requests / seconds, failures }
 }
 
 export const ms = (value: number) => `${value < 10 ? value.toFixed(2) : value.toFixed(1)} ms`
