@@ -28,7 +28,9 @@ function encodingFor(event: H3Event) {
   if (req.headers['x-nuxt-error']) return undefined // see 00.compression.ts: Nuxt's inner error render stays plain
   const cacheControl = res.getHeader('cache-control')
   if (typeof cacheControl === 'string' && NO_TRANSFORM.test(cacheControl)) return undefined
-  const encoding = new Negotiator(req).encoding(ENCODINGS, PREFERRED)
+  // Negotiator 0.6.4 takes the server's preference for equal weights (its types know only the first argument).
+  const negotiator = new Negotiator(req) as unknown as { encoding: (available: string[], preferred: string[]) => string | undefined }
+  const encoding = negotiator.encoding(ENCODINGS, PREFERRED)
   return encoding === 'br' || encoding === 'gzip' ? encoding : undefined
 }
 
