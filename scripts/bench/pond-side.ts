@@ -1,6 +1,8 @@
 // What a person at the pond side loads: the fish profile and pond pages rendered on the server, the profile
 // and growth APIs each against their own SQL, and the pond list from one process against one per core.
 // Run: bash scripts/bench/run.sh pond-side (or with DATABASE_URL of a migrated scratch database).
+import { spawn } from 'node:child_process'
+import { resolve } from 'node:path'
 import { brotliCompressSync } from 'node:zlib'
 import { Placeholder, sql } from 'drizzle-orm'
 import { drizzle } from 'drizzle-orm/node-postgres'
@@ -8,7 +10,7 @@ import pg from 'pg'
 import { GROWTH_STATEMENT_NAMES, growthSql } from '../../server/db/queries/timeline'
 import { fishAccessWithSessionQuery } from '../../server/db/queries/access'
 import { BUSY_FISH_ENTRIES, seedBusyFish, seedTenFishPond } from './seeds'
-import { cpuAccount, load, type LoadResult, ms, record, sequentialTimes, signInCookie, startBenchServer, timeSql } from './support'
+import { cpuAccount, load, type LoadResult, ms, record, ROOT, sequentialTimes, signInCookie, startBenchServer, timeSql } from './support'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3530)
 const REQUESTS = Number(process.env.BENCH_REQUESTS ?? 400)
@@ -28,6 +30,22 @@ async function pageSize(url: string, cookie: string) {
 }
 
 const kb = (bytes: number) => `${(bytes / 1024).toFixed(0)} KB`
+
+/** scripts/bench/bare-route-server.mjs on its own port: what one statement behind plain node:http costs, as a floor. */
+async function startBareRoute(port: number, statement: { name: string, text: string, values: unknown[] }) {
+  const child = spawn(process.execPath, [resolve(ROOT, 'scripts/bench/bare-route-server.mjs')], {
+    env: { ...process.env, PORT: String(port), BARE_STATEMENT: JSON.stringify(statement) }, stdio: ['ignore', 'pipe', 'inherit'],
+  })
+  await new Promise<void>((ready, fail) => {
+    child.stdout!.once('data', () => ready())
+    child.once('exit', code => fail(new Error(`bare route server exited (${code})`)))
+  })
+  const stop = () => new Promise<void>((gone) => {
+    child.once('exit', () => gone())
+    child.kill('SIGTERM')
+  })
+  return { url: `http://127.0.0.1:${port}/`, stop }
+}
 
 async function main() {
   const { userId, fishId, pondId: bigPondId } = await seedBusyFish(pool, EMAIL)
@@ -67,7 +85,9 @@ async function main() {
       await c.query(sessionSql, [session.id])
       await c.query(fishAccessSql, [fishId, userId])
     })
-    record({ what: 'GET /api/fish/:id, 1 connection', figure: `p50 ${ms(api.p50)}, p99 ${ms(api.p99)}`, comparison: `its SQL (one prepared statement: session, membership, fish, pond) p50 ${ms(apiSql.p50)}: ${(api.p50 / apiSql.p50).toFixed(1)}×; the two statements it replaced (session; fish + membership + pond) p50 ${ms(twoStatements.p50)}: ${(api.p50 / twoStatements.p50).toFixed(1)}×`, goal: '≤ 2× its SQL', met: api.p50 <= 2 * apiSql.p50 && !api.failures })
+    const bare = await startBareRoute(PORT + 2, routeAccess)
+    const floor = await sequentialTimes(bare.url, {}, REQUESTS * 2).finally(() => bare.stop())
+    record({ what: 'GET /api/fish/:id, 1 connection', figure: `p50 ${ms(api.p50)}, p99 ${ms(api.p99)}`, comparison: `its SQL (one prepared statement: session, membership, fish, pond) p50 ${ms(apiSql.p50)}: ${(api.p50 / apiSql.p50).toFixed(1)}×; the two statements it replaced (session; fish + membership + pond) p50 ${ms(twoStatements.p50)}: ${(api.p50 / twoStatements.p50).toFixed(1)}×; a bare node:http route running the same statement p50 ${ms(floor.p50)} (${(floor.p50 / apiSql.p50).toFixed(1)}× the SQL)`, goal: '≤ 2× its SQL', met: api.p50 <= 2 * apiSql.p50 && !api.failures })
 
     const growthQuery = db.dialect.sqlToQuery(growthSql(fishId))
     const growth = await sequentialTimes(`${server.url}/api/fish/${fishId}/growth`, { cookie, 'accept-encoding': 'gzip, br' }, REQUESTS)
