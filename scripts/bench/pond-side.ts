@@ -4,13 +4,11 @@
 import { spawn } from 'node:child_process'
 import { resolve } from 'node:path'
 import { brotliCompressSync } from 'node:zlib'
-import { Placeholder, sql } from 'drizzle-orm'
 import { drizzle } from 'drizzle-orm/node-postgres'
 import pg from 'pg'
 import { GROWTH_STATEMENT_NAMES, growthSql } from '../../server/db/queries/timeline'
-import { fishAccessWithSessionQuery } from '../../server/db/queries/access'
 import { BUSY_FISH_ENTRIES, seedBusyFish, seedTenFishPond } from './seeds'
-import { cpuAccount, load, type LoadResult, ms, record, ROOT, sequentialTimes, signInCookie, startBenchServer, timeSql } from './support'
+import { cpuAccount, hotReadAccess, load, type LoadResult, ms, record, ROOT, sequentialTimes, signInCookie, startBenchServer, timeSql } from './support'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3530)
 const REQUESTS = Number(process.env.BENCH_REQUESTS ?? 400)
@@ -60,11 +58,7 @@ async function main() {
     // fish (server/db/queries/access.ts, built here by the same function), prepared by name as the server prepares it.
     // Before issue 11's second pass they ran the two below one after another; both are timed, so the ratio is against
     // what the route now sends.
-    const accessText = fishAccessWithSessionQuery(db, sql.placeholder('sessionId'), sql.placeholder('fishId')).toSQL()
-    const routeAccess = {
-      name: 'fish_access_with_session', text: accessText.sql,
-      values: accessText.params.map(p => (p instanceof Placeholder && p.name === 'sessionId' ? session.id : p instanceof Placeholder ? fishId : p)),
-    }
+    const routeAccess = hotReadAccess(db, 'fish', session.id, fishId)
     const sessionSql = 'select s.id, s.created_at, s.last_seen_at, s.revoked_at, u.id, u.name, u.email, u.units, u.decimal_mark from sessions s join users u on u.id = s.user_id where s.id = $1 limit 1'
     const fishAccessSql = 'select f.*, m.role, m.read_only, p.name from fish f join memberships m on m.pond_id = f.pond_id and m.user_id = $2 join ponds p on p.id = f.pond_id where f.id = $1 limit 1'
     console.log(`Pond side, one connection, ${REQUESTS} requests each (timed here), SQL timed alone on one connection:`)

@@ -4,7 +4,9 @@ import { appendFileSync, readdirSync, readFileSync } from 'node:fs'
 import http from 'node:http'
 import { resolve } from 'node:path'
 import autocannon from 'autocannon'
+import { Placeholder, sql } from 'drizzle-orm'
 import type pg from 'pg'
+import { fishAccessWithSessionQuery, pondAccessWithSessionQuery } from '../../server/db/queries/access'
 
 export const ROOT = resolve(import.meta.dirname, '../..')
 export const BENCH_PASSWORD = 'benchmark pond password'
@@ -195,3 +197,18 @@ export async function sequentialTimes(url: string, headers: Record<string, strin
 }
 
 export const ms = (value: number) => `${value < 10 ? value.toFixed(2) : value.toFixed(1)} ms`
+
+/**
+ * The one statement a hot read (a fish, its growth and timeline; a pond and its fish list) runs before its own
+ * query: session row, user, membership (and the fish), built by the server's own function in
+ * server/db/queries/access.ts and prepared under the name the server gives it, so a benchmark times the SQL the
+ * route sends.
+ */
+export function hotReadAccess(db: Parameters<typeof fishAccessWithSessionQuery>[0], kind: 'fish' | 'pond', sessionId: string, id: string) {
+  const query = kind === 'fish'
+    ? fishAccessWithSessionQuery(db, sql.placeholder('sessionId'), sql.placeholder('id'))
+    : pondAccessWithSessionQuery(db, sql.placeholder('sessionId'), sql.placeholder('id'))
+  const { sql: text, params } = query.toSQL()
+  const values = params.map(p => (p instanceof Placeholder ? (p.name === 'sessionId' ? sessionId : id) : p))
+  return { name: `${kind}_access_with_session`, text, values }
+}
