@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { browserForFile, screenshots, signIn } from '../support/browser'
+import { browserForFile, screenshots, scrollThrough, signIn } from '../support/browser'
 import type { ApiClient } from '../support/client'
 import { DEMO, DEMO_PASSWORD, demoClient, demoPond } from '../support/demo'
 
@@ -38,6 +38,8 @@ describe('the vet’s worklist, visits and whole-pond events in Chromium', () =>
     await page.locator('[data-testid="due-item"]', { hasText: 'Ghost' }).first().getByRole('link').click()
     await page.waitForURL(`**/ponds/${whitlock.pond.id}`)
     await expect(page.getByTestId('pond-name').innerText()).resolves.toBe('Whitlock koi pond')
+    // What is due, the visits and the whole-pond events sit below the fish and load when scrolled to.
+    await scrollThrough(page)
     await page.getByTestId('pond-due').getByText('Ghost').first().waitFor()
     await page.getByTestId('pond-visits').waitFor()
 
