@@ -11,6 +11,13 @@ import { fishAccessWithSessionQuery, pondAccessWithSessionQuery } from '../../se
 export const ROOT = resolve(import.meta.dirname, '../..')
 export const BENCH_PASSWORD = 'benchmark pond password'
 
+// A benchmark that fails part-way must not leave its servers running: one still holding a port answered the
+// next run's requests in place of the server that run had started.
+const running = new Set<ReturnType<typeof spawn>>()
+process.on('exit', () => {
+  for (const child of running) child.kill('SIGTERM')
+})
+
 /** SIGTERM, and resolves when the process (with its cluster workers) has gone and the port is free. */
 function stopChild(child: ReturnType<typeof spawn>) {
   const gone = new Promise<void>(done => (child.exitCode != null ? done() : child.once('exit', () => done())))
@@ -35,6 +42,8 @@ export async function startBenchServer(port: number, extraEnv: Record<string, st
     },
     stdio: ['ignore', 'inherit', 'inherit'],
   })
+  running.add(child)
+  child.once('exit', () => running.delete(child))
   const url = `http://127.0.0.1:${port}`
   for (let i = 0; i < 200; i++) {
     try {

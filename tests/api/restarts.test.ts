@@ -1,5 +1,6 @@
 import { mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs'
 import { request } from 'node:http'
+import { createServer } from 'node:net'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import pg from 'pg'
@@ -150,4 +151,21 @@ describe('graceful restarts', () => {
       rmSync(storage, { recursive: true, force: true })
     }
   }, 180_000)
+
+  it('exits with an error when its port is taken, instead of running on with no port', async () => {
+    // Another program on the port: a plain TCP listener that answers nothing.
+    const squatter = createServer(socket => socket.destroy())
+    const port = MAIN_PORT + 20
+    await new Promise<void>(done => squatter.listen(port, '127.0.0.1', done))
+    try {
+      const started = Date.now()
+      const failure = await serverOn(port).then(() => null, (error: Error) => error)
+      expect(failure?.message).toMatch(/server exited early/)
+      expect(failure?.message).toContain(`The server cannot start: port ${port} is in use by another program`)
+      expect(Date.now() - started).toBeLessThan(30_000)
+    }
+    finally {
+      squatter.close()
+    }
+  })
 })
