@@ -13,8 +13,6 @@ import { createInterface } from 'node:readline'
 import { pipeline } from 'node:stream/promises'
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
-import { FileStore } from '@tus/file-store'
-import { Server as TusServer } from '@tus/server'
 import pg from 'pg'
 import sharp from 'sharp'
 import * as tus from 'tus-js-client'
@@ -199,6 +197,23 @@ async function plainPutServer(dir: string) {
   return { url: `http://127.0.0.1:${(server.address() as { port: number }).port}`, close: () => server.close() }
 }
 
+/** scripts/bench/bare-tus-server.mjs in its own process: @tus/server and its file store without our route around them. */
+async function startBareTus(port: number, directory: string) {
+  mkdirSync(directory, { recursive: true })
+  const child = spawn(process.execPath, [join(import.meta.dirname, 'bare-tus-server.mjs')], {
+    env: { ...process.env, PORT: String(port), TUS_DIR: directory }, stdio: ['ignore', 'pipe', 'inherit'],
+  })
+  await new Promise<void>((ready, fail) => {
+    child.stdout!.once('data', () => ready())
+    child.once('exit', code => fail(new Error(`bare tus server exited (${code})`)))
+  })
+  const stop = () => new Promise<void>((gone) => {
+    child.once('exit', () => gone())
+    child.kill('SIGTERM')
+  })
+  return { url: `http://127.0.0.1:${port}`, stop }
+}
+
 async function throughput(app: { url: string }, cookie: string, fishId: string) {
   const dir = join(WORK, 'throughput')
   mkdirSync(dir, { recursive: true })
@@ -209,12 +224,8 @@ async function throughput(app: { url: string }, cookie: string, fishId: string) 
   const mbps = (elapsed: number) => bytes.length / 1e6 / (elapsed / 1000)
 
   const put = await plainPutServer(dir)
-  // @tus/server with @tus/file-store, as our route uses them, without Nitro and our hooks.
-  const store = new FileStore({ directory: join(dir, 'tus') })
-  const tusServer = new TusServer({ path: '/files', datastore: store })
-  const plainTus = createServer((req, res) => tusServer.handle(req, res))
-  await new Promise<void>(done => plainTus.listen(0, '127.0.0.1', done))
-  const tusUrl = `http://127.0.0.1:${(plainTus.address() as { port: number }).port}/files`
+  const plainTus = await startBareTus(PORT + 5, join(dir, 'tus'))
+  const tusUrl = `${plainTus.url}/files`
   const paths = {
     copy: async () => copyFile(source, join(dir, `copy-${randomBytes(4).toString('hex')}.bin`)),
     put: async () => {
@@ -241,11 +252,11 @@ async function throughput(app: { url: string }, cookie: string, fishId: string) 
       await paths[name]()
       ;(run < WARM_UPLOADS ? warmUp : times)[name].push(performance.now() - started)
     }
-    rmSync(join(dir, 'tus'), { recursive: true, force: true })
+    for (const file of readdirSync(join(dir, 'tus'))) rmSync(join(dir, 'tus', file))
     for (const file of readdirSync(dir)) if (file.startsWith('copy-') || file.startsWith('put-')) rmSync(join(dir, file))
   }
   put.close()
-  plainTus.close()
+  await plainTus.stop()
 
   const copyRate = mbps(median(times.copy))
   const putRate = mbps(median(times.put))
