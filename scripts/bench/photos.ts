@@ -18,7 +18,7 @@ import sharp from 'sharp'
 import * as tus from 'tus-js-client'
 import { MAX_UPLOAD_BYTES, UPLOAD_CHUNK_BYTES } from '../../shared/utils/photo-limits'
 import { DERIVED_ENCODING, makeDerived } from '../../server/utils/photo-derive'
-import { BENCH_PASSWORD, cpuSecondsByPid, record, signInCookie, startBenchServer } from './support'
+import { BENCH_PASSWORD, cpuSecondsByPid, record, signInCookie, startBenchServer, startHelperServer } from './support'
 
 const CONVERT = '/usr/bin/convert'
 const PORT = Number(process.env.BENCH_PORT ?? 3520)
@@ -200,17 +200,7 @@ async function plainPutServer(dir: string) {
 /** scripts/bench/bare-tus-server.mjs in its own process: @tus/server and its file store without our route around them. */
 async function startBareTus(port: number, directory: string) {
   mkdirSync(directory, { recursive: true })
-  const child = spawn(process.execPath, [join(import.meta.dirname, 'bare-tus-server.mjs')], {
-    env: { ...process.env, PORT: String(port), TUS_DIR: directory }, stdio: ['ignore', 'pipe', 'inherit'],
-  })
-  await new Promise<void>((ready, fail) => {
-    child.stdout!.once('data', () => ready())
-    child.once('exit', code => fail(new Error(`bare tus server exited (${code})`)))
-  })
-  const stop = () => new Promise<void>((gone) => {
-    child.once('exit', () => gone())
-    child.kill('SIGTERM')
-  })
+  const { stop } = await startHelperServer('scripts/bench/bare-tus-server.mjs', { PORT: String(port), TUS_DIR: directory })
   return { url: `http://127.0.0.1:${port}`, stop }
 }
 

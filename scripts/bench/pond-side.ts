@@ -1,14 +1,12 @@
 // What a person at the pond side loads: the fish profile and pond pages rendered on the server, the profile
 // and growth APIs each against their own SQL, and the pond list from one process against one per core.
 // Run: bash scripts/bench/run.sh pond-side (or with DATABASE_URL of a migrated scratch database).
-import { spawn } from 'node:child_process'
-import { resolve } from 'node:path'
 import { brotliCompressSync } from 'node:zlib'
 import { drizzle } from 'drizzle-orm/node-postgres'
 import pg from 'pg'
 import { GROWTH_STATEMENT_NAMES, growthSql } from '../../server/db/queries/timeline'
 import { BUSY_FISH_ENTRIES, seedBusyFish, seedTenFishPond } from './seeds'
-import { cpuAccount, hotReadAccess, load, type LoadResult, ms, record, ROOT, sequentialTimes, signInCookie, startBenchServer, timeSql } from './support'
+import { cpuAccount, hotReadAccess, load, type LoadResult, ms, record, sequentialTimes, signInCookie, startBenchServer, startHelperServer, timeSql } from './support'
 
 const PORT = Number(process.env.BENCH_PORT ?? 3530)
 const REQUESTS = Number(process.env.BENCH_REQUESTS ?? 400)
@@ -31,17 +29,7 @@ const kb = (bytes: number) => `${(bytes / 1024).toFixed(0)} KB`
 
 /** scripts/bench/bare-route-server.mjs on its own port: what one statement behind plain node:http costs, as a floor. */
 async function startBareRoute(port: number, statement: { name: string, text: string, values: unknown[] }) {
-  const child = spawn(process.execPath, [resolve(ROOT, 'scripts/bench/bare-route-server.mjs')], {
-    env: { ...process.env, PORT: String(port), BARE_STATEMENT: JSON.stringify(statement) }, stdio: ['ignore', 'pipe', 'inherit'],
-  })
-  await new Promise<void>((ready, fail) => {
-    child.stdout!.once('data', () => ready())
-    child.once('exit', code => fail(new Error(`bare route server exited (${code})`)))
-  })
-  const stop = () => new Promise<void>((gone) => {
-    child.once('exit', () => gone())
-    child.kill('SIGTERM')
-  })
+  const { stop } = await startHelperServer('scripts/bench/bare-route-server.mjs', { PORT: String(port), BARE_STATEMENT: JSON.stringify(statement) })
   return { url: `http://127.0.0.1:${port}/`, stop }
 }
 

@@ -56,6 +56,18 @@ export async function startBenchServer(port: number, extraEnv: Record<string, st
   throw new Error('bench server did not start')
 }
 
+/** A helper server of the benchmarks (a script under ROOT) in its own process, ready once it prints its first line. */
+export async function startHelperServer(script: string, env: Record<string, string>) {
+  const child = spawn(process.execPath, [resolve(ROOT, script)], { env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'inherit'] })
+  running.add(child)
+  child.once('exit', () => running.delete(child))
+  await new Promise<void>((ready, fail) => {
+    child.stdout!.once('data', () => ready())
+    child.once('exit', code => fail(new Error(`${script} exited (${code})`)))
+  })
+  return { stop: () => stopChild(child) }
+}
+
 export async function signInCookie(url: string, email: string) {
   const response = await fetch(`${url}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: BENCH_PASSWORD }) })
   if (!response.ok) throw new Error(`sign-in failed: ${response.status}`)
