@@ -21,7 +21,8 @@ if (cluster.isPrimary) {
   for (let i = 0; i < workers; i++) fork()
   cluster.on('exit', (worker, code, signal) => {
     if (stopping) {
-      if (Object.keys(cluster.workers ?? {}).length === 0) process.exit(0)
+      // process.exitCode, set by stop(): 1 when a worker could not start.
+      if (Object.keys(cluster.workers ?? {}).length === 0) process.exit()
       return
     }
     // A worker that dies at once would die again: stop everything rather than loop.

@@ -18,8 +18,8 @@ afterAll(async () => {
   await closeTestDb()
 })
 
-async function serverOn(port: number, env: Record<string, string> = {}) {
-  const server = await startServer(port, env)
+async function serverOn(port: number, env: Record<string, string> = {}, options: { cluster?: boolean } = {}) {
+  const server = await startServer(port, env, options)
   servers.push(server)
   return server
 }
@@ -152,15 +152,18 @@ describe('graceful restarts', () => {
     }
   }, 180_000)
 
-  it('exits with an error when its port is taken, instead of running on with no port', async () => {
+  it.each([
+    ['one process', false],
+    ['npm start\'s cluster of one process per core', true],
+  ])('exits with an error when its port is taken, instead of running on with no port (%s)', async (_name, cluster) => {
     // Another program on the port: a plain TCP listener that answers nothing.
     const squatter = createServer(socket => socket.destroy())
     const port = MAIN_PORT + 20
     await new Promise<void>(done => squatter.listen(port, '127.0.0.1', done))
     try {
       const started = Date.now()
-      const failure = await serverOn(port).then(() => null, (error: Error) => error)
-      expect(failure?.message).toMatch(/server exited early/)
+      const failure = await serverOn(port, {}, { cluster }).then(() => null, (error: Error) => error)
+      expect(failure?.message).toMatch(/server exited early \(status 1\)/)
       expect(failure?.message).toContain(`The server cannot start: port ${port} is in use by another program`)
       expect(Date.now() - started).toBeLessThan(30_000)
     }

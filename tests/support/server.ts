@@ -14,7 +14,8 @@ export interface RunningServer {
 /** Starts the built production server (.output) on its own port against the test database. */
 /** extraEnv values of null remove a variable the test server would otherwise set. */
 /** `acceptUnhealthy`: ready once it answers at all (for a server started with a broken part on purpose). */
-export async function startServer(port: number, extraEnv: Record<string, string | null> = {}, options: { acceptUnhealthy?: boolean } = {}): Promise<RunningServer> {
+/** `cluster`: as `npm start` runs it, through scripts/cluster.mjs (one process per core). */
+export async function startServer(port: number, extraEnv: Record<string, string | null> = {}, options: { acceptUnhealthy?: boolean, cluster?: boolean } = {}): Promise<RunningServer> {
   const env = testEnv()
   mkdirSync(env.storageDir, { recursive: true })
   let output = ''
@@ -43,7 +44,7 @@ export async function startServer(port: number, extraEnv: Record<string, string 
   const childEnv = Object.fromEntries(Object.entries({ ...baseEnv, ...extraEnv }).filter(([, value]) => value !== null))
   // FINTRAIL_SERVER_ENTRY points at a copy of a build, so a rebuild in the checkout cannot pull it away mid-run.
   const entry = process.env.FINTRAIL_SERVER_ENTRY ?? resolve(ROOT, '.output/server/index.mjs')
-  const child = spawn(process.execPath, [entry], {
+  const child = spawn(process.execPath, options.cluster ? [resolve(ROOT, 'scripts/cluster.mjs'), entry] : [entry], {
     cwd: ROOT,
     env: childEnv,
     stdio: ['ignore', 'pipe', 'pipe'],
@@ -55,7 +56,7 @@ export async function startServer(port: number, extraEnv: Record<string, string 
   // Generous: on a machine busy with other builds a start has taken over 30 s.
   const deadline = Date.now() + 60_000
   for (;;) {
-    if (child.exitCode !== null) throw new Error(`server exited early:\n${output}`)
+    if (child.exitCode !== null) throw new Error(`server exited early (status ${child.exitCode}):\n${output}`)
     try {
       const response = await fetch(`${url}/api/health`)
       if (response.ok || (options.acceptUnhealthy && response.status === 503)) break
