@@ -62,7 +62,7 @@ describe('spreadsheet uploads', () => {
     let done = false
     const started = performance.now()
     const upload = columns('large.xlsx', workbook).finally(() => (done = true))
-    // A head start, so its body (about 1 MB over loopback) is on the server before the polling starts. It was
+    // A head start, so its body (2.5 MB over loopback) is on the server before the polling starts. It was
     // 300 ms: on a fast machine the parse had all but ended by then, and only one answer came while it ran.
     await new Promise(resolve => setTimeout(resolve, 50))
     while (!done) {
